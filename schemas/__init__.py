@@ -1,0 +1,1 @@
+"""The published JSON Schema of the spec format, shipped inside the package."""

@@ -1,0 +1,3 @@
+"""speccheck: a linter for ultrafast laser experiment specs."""
+
+__version__ = "0.1.0"

@@ -1,0 +1,379 @@
+"""The checker: a parsed document in, a ``FileResult`` (findings and sheet) out.
+
+This is the core of speccheck and it does no I/O: the command line reads
+files and formats results.  Checks say *what* (a rule id, a message, the
+quantities); ``_Report`` says *where*, stamping file, line, column and the
+rule's severity from the document's node marks.
+"""
+
+from __future__ import annotations
+
+import math
+from dataclasses import dataclass
+
+from .engine import Diagnosis, Network, State, diagnose, evaluate, implied, network_for
+from .findings import Cell, FileResult, Finding
+from .limits import LIMITS
+from .loader import Document, Limits, load
+from .quantities import ALIASES, BY_NAME, CATEGORICAL, DEFAULTS, QUANTITIES
+from .relations import BY_ID, Context
+from .rules import rule
+from .schema import validate
+from .shapes import BEAM_PROFILES, DEFAULT_PROFILE, DEFAULT_SHAPE, PULSE_SHAPES
+from .units import UnitSystem, choose_unit, format_number, format_quantity
+from .values import Stated, ValueParser, ValueProblem, parse_tolerance
+
+NAMES = tuple(q.name for q in QUANTITIES)
+_KEYS = set(NAMES) | set(ALIASES)
+DEFAULT_TOLERANCE = 0.05
+
+
+@dataclass(frozen=True)
+class Options:
+    limits: Limits = Limits()
+    default_tolerance: float = DEFAULT_TOLERANCE
+
+
+class _Report:
+    """Collects findings; stamps location and severity (checks never do)."""
+
+    def __init__(self, path: str, doc: Document) -> None:
+        self.path = path
+        self.doc = doc
+        self.findings: list[Finding] = []
+
+    def add(self, rule_id: str, message: str, at=(), *, key: bool = False, line=None, column=None,
+            quantities=(), suspect=None, candidates=()) -> None:
+        if line is None:
+            line, column = self.doc.where(tuple(at), key=key)
+        self.findings.append(Finding(rule_id, rule(rule_id).severity, message, self.path, line, column,
+                                     tuple(quantities), suspect, tuple(candidates)))
+
+
+class Checker:
+    def __init__(self, units: UnitSystem, options: Options = Options()) -> None:
+        self.units = units
+        self.options = options
+        self.values = ValueParser(units)
+
+    def check_text(self, text: str | bytes, path: str) -> FileResult:
+        doc = load(text, self.options.limits)
+        report = _Report(path, doc)
+        for p in doc.problems:
+            report.add(p.rule, p.message, line=p.line, column=p.column)
+        sheet: dict[str, dict[str, Cell]] = {}
+        data = doc.data
+        if not doc.problems or data is not None:
+            for rule_id, at, message, at_key in validate(data):
+                report.add(rule_id, message, at, key=at_key)
+        title = None
+        if isinstance(data, dict):
+            title = data.get("title") if isinstance(data.get("title"), str) else None
+            tolerance = self._tolerance(data, report)
+            block = data.get("laser")
+            if isinstance(block, dict):
+                sheet["laser"] = _BlockCheck(self, "laser", block, tolerance, report).run()
+        findings = tuple(sorted(report.findings, key=Finding.sort_key))
+        return FileResult(path, findings, sheet, title)
+
+    def _tolerance(self, data: dict, report: _Report) -> float:
+        defaults = data.get("defaults")
+        if not isinstance(defaults, dict) or "tolerance" not in defaults:
+            return self.options.default_tolerance
+        try:
+            return parse_tolerance(defaults["tolerance"])
+        except ValueProblem as p:
+            report.add(p.rule, f"defaults.tolerance: {p.message}", ("defaults", "tolerance"))
+            return self.options.default_tolerance
+
+    def context(self, shape: str, profile: str) -> Context:
+        k = self.units.constants
+        return Context(k.c, k.h, k.eps0, PULSE_SHAPES[shape], BEAM_PROFILES[profile])
+
+
+def _ln(x: float) -> float:
+    if x <= 0.0:
+        return -math.inf
+    return math.log(x) if math.isfinite(x) else math.inf
+
+
+def _exp(y: float) -> float | None:
+    """Back from log space; None for an unbounded side."""
+    if not math.isfinite(y):
+        return None
+    return math.exp(y)
+
+
+def _centre(low: float | None, high: float | None) -> float | None:
+    if low is not None and high is not None:
+        return math.sqrt(low * high)
+    return low if low is not None else high
+
+
+class _BlockCheck:
+    """Checks one block of quantities (the laser, later each stage)."""
+
+    def __init__(self, checker: Checker, name: str, block: dict, tolerance: float, report: _Report) -> None:
+        self.c = checker
+        self.name = name
+        self.block = block
+        self.tolerance = tolerance
+        self.report = report
+        self.stated: dict[str, Stated] = {}
+        self.keys: dict[str, str] = {}  # quantity -> spec key it was stated under
+
+    # ------------------------------------------------------------- helpers
+    def dotted(self, quantity: str) -> str:
+        return f"{self.name}.{quantity}"
+
+    def at(self, quantity: str) -> tuple:
+        return (self.name, self.keys.get(quantity, quantity))
+
+    def show(self, quantity: str, si: float, unit: str | None = None) -> str:
+        return format_quantity(self.c.units, si, unit or self.unit_for(quantity, si))
+
+    def unit_for(self, quantity: str, si: float) -> str:
+        """The user's unit where stated, else the display unit; a prefix that fits the number."""
+        base = self.stated[quantity].unit if quantity in self.stated else BY_NAME[quantity].display_unit
+        return choose_unit(self.c.units, si, base)
+
+    def show_interval(self, quantity: str, low: float | None, high: float | None,
+                      value: float | None = None) -> str:
+        if low is not None and high is not None:
+            value = value if value is not None else math.sqrt(low * high)
+            unit = self.unit_for(quantity, value)
+            if high / low < 1.0 + 1e-9:
+                return self.show(quantity, value, unit)
+            return (f"{self.show(quantity, value, unit)} "
+                    f"({self.show(quantity, low, unit)} … {self.show(quantity, high, unit)})")
+        if low is not None:
+            return f"at least {self.show(quantity, low)}"
+        if high is not None:
+            return f"at most {self.show(quantity, high)}"
+        return "anything"
+
+    def first_in_file(self, quantities) -> str:
+        return min(quantities, key=lambda q: self.report.doc.where(self.at(q)))
+
+    # ----------------------------------------------------------------- run
+    def run(self) -> dict[str, Cell]:
+        self.parse_values()
+        shape = self.categorical("pulse_shape", PULSE_SHAPES, DEFAULT_SHAPE)
+        profile = self.categorical("beam_profile", BEAM_PROFILES, DEFAULT_PROFILE)
+        self.context = self.c.context(shape, profile)
+        self.net: Network = network_for(NAMES, self.context)
+        idx = self.net.index
+        self.log_stated = {idx[q]: (_ln(s.low), _ln(s.high)) for q, s in self.stated.items()}
+        fixed = set()
+        for q, value in DEFAULTS.items():
+            if q not in self.stated:
+                self.log_stated[idx[q]] = (math.log(value), math.log(value))
+                fixed.add(idx[q])
+        self.fixed = frozenset(fixed)
+        self.diagnosis = diagnose(self.net, self.log_stated, self.fixed)
+        self.report_conflicts()
+        cells = self.cells()
+        self.report_limits(cells)
+        self.report_assumptions(cells)
+        return cells
+
+    def parse_values(self) -> None:
+        for key, raw in self.block.items():
+            if key in CATEGORICAL or key not in _KEYS:
+                continue
+            try:
+                stated = self.c.values.parse(key, raw, self.tolerance)
+            except ValueProblem as p:
+                self.report.add(p.rule, f"{self.name}.{p.message}", (self.name, key),
+                                quantities=(self.dotted(key),))
+                continue
+            if stated.quantity in self.stated:
+                first = self.keys[stated.quantity]
+                self.report.add("duplicate-quantity", f"{self.name}.{key} states {stated.quantity} again "
+                                f"(already stated as {first}); the second is ignored", (self.name, key),
+                                quantities=(self.dotted(stated.quantity),))
+                continue
+            self.stated[stated.quantity] = stated
+            self.keys[stated.quantity] = key
+
+    def categorical(self, key: str, table: dict, default: str) -> str:
+        value = self.block.get(key)
+        return value if isinstance(value, str) and value in table else default
+
+    # ----------------------------------------------------------- conflicts
+    def describe_support(self, support, leave_out=()) -> str:
+        names = [self.net.names[i] for i in sorted(support, key=lambda i: self.net.names[i])]
+        parts = [f"{self.keys[q]} {self.stated[q].text}" for q in names if q in self.stated and q not in leave_out]
+        parts += [f"{q} {DEFAULTS[q]:g} (default)" for q in names if q not in self.stated and q in DEFAULTS]
+        return _join(parts)
+
+    def describe_via(self, via) -> str:
+        text = "; ".join(BY_ID[r].formula.split("  (")[0] for r in sorted(via))
+        assumed = sorted({k for r in via for k in BY_ID[r].uses if k not in self.block})
+        if assumed:
+            text += ", assuming a " + " and a ".join(
+                f"{self.context.shape.name if k == 'pulse_shape' else self.context.profile.name} "
+                f"{k.replace('_', ' ')}" for k in assumed)
+        return text
+
+    def nominal(self, exclude=()) -> dict:
+        """Point values of every quantity computable from the stated typical values."""
+        return evaluate(self.net, {
+            self.net.index[q]: math.log(s.typical) for q, s in self.stated.items()
+            if s.typical is not None and self.net.index[q] not in exclude
+        } | {i: self.log_stated[i][0] for i in self.fixed})
+
+    def implied_text(self, var: int, state: State, exclude=()) -> tuple[str, float | None]:
+        q = self.net.names[var]
+        low, high = _exp(state.lo[var]), _exp(state.hi[var])
+        point = self.nominal(exclude or (var,)).get(var)
+        value = None
+        if point is not None and low is not None and high is not None:
+            value = min(max(math.exp(point), low), high)
+        return self.show_interval(q, low, high, value), value if value is not None else _centre(low, high)
+
+    def ratio_text(self, quantity: str, implied_centre: float | None) -> str:
+        s = self.stated[quantity]
+        mine = s.typical if s.typical is not None else _centre(_exp(_ln(s.low)), _exp(_ln(s.high)))
+        if not mine or not implied_centre:
+            return ""
+        r = mine / implied_centre
+        return f" The stated value is {_format_ratio(r)} the implied one."
+
+    def report_conflicts(self) -> None:
+        d: Diagnosis = self.diagnosis
+        if d.consistent:
+            return
+        names = self.net.names
+        involved = sorted({names[i] for i in d.conflict} | {names[i] for i in d.removed})
+        dotted = [self.dotted(q) for q in involved if q in self.stated]
+        if d.suspects:
+            for s in d.suspects:
+                q = names[s]
+                text, centre = self.implied_text(s, d.state, d.removed)
+                support = d.state.support(s)
+                via = d.state.via(s)
+                self.report.add(
+                    "relation-conflict",
+                    f"{self.name}.{q} = {self.stated[q].text} does not follow from the rest of the spec: "
+                    f"{self.describe_support(support)} imply {text} (via {self.describe_via(via)})."
+                    + self.ratio_text(q, centre),
+                    self.at(q), quantities=[self.dotted(q)] + [self.dotted(names[i]) for i in sorted(support)
+                                                              if names[i] in self.stated],
+                    suspect=self.dotted(q))
+            return
+        if not d.candidates:  # only defaults conflict: nothing the user stated can be blamed
+            return
+        first = self.first_in_file([names[i] for i in d.candidates])
+        lines = []
+        for c in sorted(d.candidates, key=lambda c: self.report.doc.where(self.at(names[c]))):
+            rest = implied(self.net, self.log_stated, c)
+            if rest.ok:
+                text, _ = self.implied_text(c, rest)
+                lines.append(f"{names[c]} (the rest implies {text})")
+            else:
+                lines.append(names[c])
+        full = self.c_state_via(d)
+        self.report.add(
+            "relation-conflict",
+            f"these stated values cannot all be true: {self.describe_support(d.conflict)}"
+            f"{' (via ' + self.describe_via(full) + ')' if full else ''}. "
+            f"Any one of them could be the wrong one: {_join(lines)}; state more numbers to tell them apart.",
+            self.at(first), quantities=dotted, candidates=[self.dotted(names[c]) for c in d.candidates])
+
+    def c_state_via(self, d: Diagnosis) -> frozenset:
+        via = frozenset()
+        for c in d.candidates:
+            rest = implied(self.net, self.log_stated, c)
+            if rest.ok:
+                via |= rest.via(c)
+        return via
+
+    # ---------------------------------------------------------------- sheet
+    def cells(self) -> dict[str, Cell]:
+        d = self.diagnosis
+        names = self.net.names
+        removed = set(d.removed)
+        nominal = self.nominal(removed)
+        out: dict[str, Cell] = {}
+        for i, q in enumerate(names):
+            quantity = BY_NAME[q]
+            if q in self.stated:
+                s = self.stated[q]
+                low, high = _exp(_ln(s.low)), _exp(_ln(s.high))
+                value = s.typical if s.typical is not None else _centre(low, high)
+                if i in removed:
+                    state = d.state if d.suspects else implied(self.net, self.log_stated, i)
+                    ilo, ihi = (_exp(state.lo[i]), _exp(state.hi[i])) if state.ok else (None, None)
+                    out[q] = Cell("conflict", low, high, value, quantity.si_unit, s.unit, ilo, ihi,
+                                  text=s.text)
+                else:
+                    out[q] = Cell("stated", low, high, value, quantity.si_unit, s.unit, text=s.text)
+            elif d.state.known(i) and i not in self.fixed:
+                low, high = _exp(d.state.lo[i]), _exp(d.state.hi[i])
+                value = _centre(low, high)
+                if i in nominal:
+                    value = min(max(math.exp(nominal[i]), low or 0.0), high or math.inf)
+                unit = choose_unit(self.c.units, value, quantity.display_unit)
+                out[q] = Cell("derived", low, high, value, quantity.si_unit, unit)
+        for q, value in DEFAULTS.items():
+            used = any(q in BY_ID[r].quantities() for c in out for r in d.state.via(self.net.index[c]))
+            if q not in out and used:
+                out[q] = Cell("derived", value, value, value, BY_NAME[q].si_unit, "1", assumed=True)
+        return {q: out[q] for q in names if q in out}
+
+    # --------------------------------------------------------------- limits
+    def report_limits(self, cells: dict[str, Cell]) -> None:
+        for limit in LIMITS:
+            cell = cells.get(limit.quantity)
+            if cell is None or cell.status == "conflict":
+                continue
+            low = cell.low if cell.low is not None else 0.0
+            high = cell.high if cell.high is not None else math.inf
+            if not limit.violated(low, high, self.context):
+                continue
+            q = limit.quantity
+            i = self.net.index[q]
+            support = self.diagnosis.state.support(i) - self.fixed
+            where = q if q in self.stated else self.first_in_file([self.net.names[k] for k in support] or [q])
+            origin = "" if q in self.stated else f" (from {self.describe_support(support)})"
+            bound = limit.bound(self.context)
+            what = limit.what.format(shape=self.context.shape.name)
+            bound_text = f"{what}" if what.replace(" ", "").replace(".", "").isdigit() else \
+                f"{what} ({format_quantity(self.c.units, bound, self.unit_for(q, bound))})"
+            relation = "below" if limit.side == "min" else "at or above" if bound == 1.0 else "above"
+            self.report.add(
+                limit.rule,
+                f"{self.name}.{q} is {self.show_interval(q, cell.low, cell.high, cell.value)}{origin}, {relation} "
+                f"{bound_text}: {limit.consequence}.",
+                self.at(where), quantities=[self.dotted(q)] + sorted(
+                    self.dotted(self.net.names[k]) for k in support if self.net.names[k] != q))
+
+    # ---------------------------------------------------------- assumptions
+    def report_assumptions(self, cells: dict[str, Cell]) -> None:
+        state = self.diagnosis.state
+        for key, default in (("pulse_shape", DEFAULT_SHAPE), ("beam_profile", DEFAULT_PROFILE)):
+            if key in self.block:
+                continue
+            relying = sorted(
+                q for q, cell in cells.items() if cell.status == "derived"
+                and any(key in BY_ID[r].uses for r in state.via(self.net.index[q])))
+            if relying:
+                self.report.add(
+                    "assumed-shape",
+                    f"{self.name}.{key} is not stated, so a {default} {key.replace('_', ' ')} is assumed "
+                    f"for the derived {_join(relying)}; state {key} to make them exact.",
+                    (self.name,), key=True, quantities=[self.dotted(q) for q in relying])
+
+
+def _join(parts) -> str:
+    parts = list(parts)
+    if len(parts) <= 1:
+        return "".join(parts)
+    return ", ".join(parts[:-1]) + " and " + parts[-1]
+
+
+def _format_ratio(r: float) -> str:
+    if r >= 1:
+        return f"{format_number(r, 3)}×"
+    return f"{format_number(r, 3)}× (1/{format_number(1 / r, 3)} of)"

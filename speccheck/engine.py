@@ -1,0 +1,228 @@
+"""The generic engine: interval propagation over the relation table in log space.
+
+Every relation Π q_i^e_i = K is the linear equation Σ e_i y_i = ln K in the
+logarithms y_i = ln q_i.  Each stated value is an interval of y; propagation
+narrows every quantity's interval with every relation until nothing changes
+(a fixed point).  The result is the derived interval of every quantity, or a
+proof of contradiction: an empty interval, together with the set of stated
+values it came from (each bound carries its *support*: the stated values and
+relations it was computed from).
+
+``diagnose`` then looks for the smallest set of stated values whose removal
+makes the rest consistent: each single value of the conflict, then pairs.
+The engine knows no physics; ``relations.py`` supplies it all.
+"""
+
+from __future__ import annotations
+
+import math
+from collections import deque
+from dataclasses import dataclass
+from functools import lru_cache
+
+from .relations import RELATIONS, Context, Relation
+
+_TIGHTEN = 1e-12  # smallest change in ln q worth propagating
+_EMPTY = 1e-9  # lo > hi by more than this in ln q is a contradiction
+_MAX_STEPS = 20_000
+
+EMPTY: frozenset = frozenset()
+
+
+@dataclass(frozen=True)
+class Network:
+    """The relation table compiled for one context: integer indices, ln K as floats."""
+
+    names: tuple[str, ...]
+    index: dict
+    relations: tuple[tuple[Relation, tuple[tuple[int, float], ...], float], ...]
+    touching: tuple[tuple[int, ...], ...]  # var -> relations it takes part in
+
+
+def compile_network(names: tuple[str, ...], context: Context,
+                    relations: tuple[Relation, ...] = RELATIONS) -> Network:
+    index = {n: i for i, n in enumerate(names)}
+    compiled = []
+    for rel in relations:
+        terms = tuple((index[q], float(e)) for q, e in rel.terms)
+        compiled.append((rel, terms, math.log(rel.constant(context))))
+    touching = [[] for _ in names]
+    for r, (_, terms, _) in enumerate(compiled):
+        for i, _ in terms:
+            touching[i].append(r)
+    return Network(tuple(names), index, tuple(compiled), tuple(tuple(t) for t in touching))
+
+
+@dataclass
+class State:
+    """Intervals of ln q after propagation, each bound with its support."""
+
+    lo: list
+    hi: list
+    lo_support: list  # frozenset of stated var indices
+    hi_support: list
+    lo_via: list  # frozenset of relation ids
+    hi_via: list
+    conflict: tuple | None = None  # (var, support, via) when an interval became empty
+
+    @property
+    def ok(self) -> bool:
+        return self.conflict is None
+
+    def support(self, i: int) -> frozenset:
+        return self.lo_support[i] | self.hi_support[i]
+
+    def via(self, i: int) -> frozenset:
+        return self.lo_via[i] | self.hi_via[i]
+
+    def known(self, i: int) -> bool:
+        return self.lo[i] > -math.inf or self.hi[i] < math.inf
+
+
+def propagate(net: Network, stated: dict) -> State:
+    """``stated``: var index -> (ln low, ln high).  Returns the fixed point."""
+    n = len(net.names)
+    inf = math.inf
+    lo, hi = [-inf] * n, [inf] * n
+    lo_s, hi_s = [EMPTY] * n, [EMPTY] * n
+    lo_v, hi_v = [EMPTY] * n, [EMPTY] * n
+    for i, (a, b) in stated.items():
+        lo[i], hi[i] = a, b
+        lo_s[i] = hi_s[i] = frozenset((i,))
+    state = State(lo, hi, lo_s, hi_s, lo_v, hi_v)
+    queue = deque(range(len(net.relations)))
+    queued = [True] * len(net.relations)
+    steps = 0
+    while queue and steps < _MAX_STEPS:
+        r = queue.popleft()
+        queued[r] = False
+        rel, terms, ln_k = net.relations[r]
+        for j, ej in terms:
+            steps += 1
+            # Σ_{k≠j} e_k y_k as an interval [s_lo, s_hi], with the supports of each end.
+            s_lo = s_hi = 0.0
+            sup_lo = sup_hi = EMPTY
+            via_lo = via_hi = EMPTY
+            for k, ek in terms:
+                if k == j:
+                    continue
+                if ek > 0:
+                    s_lo += ek * lo[k]; s_hi += ek * hi[k]
+                    sup_lo |= lo_s[k]; sup_hi |= hi_s[k]
+                    via_lo |= lo_v[k]; via_hi |= hi_v[k]
+                else:
+                    s_lo += ek * hi[k]; s_hi += ek * lo[k]
+                    sup_lo |= hi_s[k]; sup_hi |= lo_s[k]
+                    via_lo |= hi_v[k]; via_hi |= lo_v[k]
+            if ej > 0:
+                new_lo, new_hi = (ln_k - s_hi) / ej, (ln_k - s_lo) / ej
+                nlo_s, nhi_s, nlo_v, nhi_v = sup_hi, sup_lo, via_hi, via_lo
+            else:
+                new_lo, new_hi = (ln_k - s_lo) / ej, (ln_k - s_hi) / ej
+                nlo_s, nhi_s, nlo_v, nhi_v = sup_lo, sup_hi, via_lo, via_hi
+            changed = False
+            if new_lo > lo[j] + _TIGHTEN:
+                lo[j], lo_s[j], lo_v[j] = new_lo, nlo_s, nlo_v | {rel.id}
+                changed = True
+            if new_hi < hi[j] - _TIGHTEN:
+                hi[j], hi_s[j], hi_v[j] = new_hi, nhi_s, nhi_v | {rel.id}
+                changed = True
+            if changed:
+                if lo[j] > hi[j] + _EMPTY:
+                    state.conflict = (j, lo_s[j] | hi_s[j], lo_v[j] | hi_v[j])
+                    return state
+                for other in net.touching[j]:
+                    if not queued[other]:
+                        queued[other] = True
+                        queue.append(other)
+    return state
+
+
+@dataclass(frozen=True)
+class Diagnosis:
+    state: State  # propagation with the removed values left out
+    removed: tuple[int, ...]  # stated values left out: suspects, or candidates, or the conflict
+    suspects: tuple[int, ...]  # values that alone (or as the one pair) explain every conflict
+    candidates: tuple[int, ...]  # when ambiguous: each of these alone would explain it
+    conflict: frozenset  # the stated values of the first contradiction found (empty if none)
+
+    @property
+    def consistent(self) -> bool:
+        return not self.conflict
+
+
+def diagnose(net: Network, stated: dict, fixed: frozenset = EMPTY) -> Diagnosis:
+    """Propagate; on contradiction find which stated values explain it.
+
+    ``fixed`` are stated vars that are never suspected (defaults, not the user's).
+    """
+    full = propagate(net, stated)
+    if full.ok:
+        return Diagnosis(full, (), (), (), EMPTY)
+    conflict = full.conflict[1]
+    removable = sorted(conflict - fixed)
+    if not removable:
+        return Diagnosis(full, (), (), (), conflict)
+
+    def without(drop) -> State:
+        return propagate(net, {i: v for i, v in stated.items() if i not in drop})
+
+    singles = []
+    rests = {}
+    for i in removable:
+        rest = without((i,))
+        rests[i] = rest
+        if rest.ok:
+            singles.append(i)
+    if len(singles) == 1:
+        return Diagnosis(rests[singles[0]], tuple(singles), tuple(singles), (), conflict)
+    if singles:
+        return Diagnosis(without(singles), tuple(singles), (), tuple(singles), conflict)
+    pairs = set()
+    for a in removable:
+        second = rests[a].conflict[1] - fixed - {a}
+        for b in sorted(second):
+            pair = tuple(sorted((a, b)))
+            if pair not in pairs and without(pair).ok:
+                pairs.add(pair)
+    if len(pairs) == 1:
+        pair = next(iter(pairs))
+        return Diagnosis(without(pair), pair, pair, (), conflict)
+    if pairs:
+        members = tuple(sorted({i for p in pairs for i in p}))
+        return Diagnosis(without(members), members, (), members, conflict)
+    members = tuple(removable)
+    return Diagnosis(without(members), members, (), members, conflict)
+
+
+def implied(net: Network, stated: dict, var: int) -> State:
+    """Propagation of every stated value except ``var``: what the rest implies for it."""
+    return propagate(net, {i: v for i, v in stated.items() if i != var})
+
+
+@lru_cache(maxsize=64)
+def network_for(names: tuple[str, ...], context: Context) -> Network:
+    return compile_network(names, context)
+
+
+def evaluate(net: Network, known: dict) -> dict:
+    """Spreadsheet-style point values: solve every relation with one unknown left.
+
+    ``known``: var index -> ln value.  Where values are over-determined the first
+    relation in table order wins; intervals (``propagate``) decide consistency,
+    this only gives the nominal number to show for each derived cell.
+    """
+    values = dict(known)
+    changed = True
+    while changed:
+        changed = False
+        for _, terms, ln_k in net.relations:
+            unknown = [(j, e) for j, e in terms if j not in values]
+            if len(unknown) != 1:
+                continue
+            j, ej = unknown[0]
+            rest = sum(e * values[k] for k, e in terms if k != j)
+            if math.isfinite(rest):
+                values[j] = (ln_k - rest) / ej
+                changed = True
+    return values

@@ -1,0 +1,55 @@
+"""Findings and sheet cells: the immutable records the checker produces."""
+
+from __future__ import annotations
+
+from dataclasses import dataclass, field
+
+SEVERITIES = ("error", "warning", "note")
+SEVERITY_RANK = {s: i for i, s in enumerate(SEVERITIES)}
+
+
+@dataclass(frozen=True)
+class Finding:
+    rule: str
+    severity: str
+    message: str
+    path: str
+    line: int | None = None  # 1-based
+    column: int | None = None  # 1-based
+    quantities: tuple[str, ...] = ()
+    suspect: str | None = None
+    candidates: tuple[str, ...] = ()
+
+    def __post_init__(self) -> None:
+        if self.severity not in SEVERITY_RANK:
+            raise ValueError(f"unknown severity {self.severity!r}")
+
+    def sort_key(self) -> tuple:
+        return (self.path, self.line or 0, self.column or 0, self.rule, self.message)
+
+
+@dataclass(frozen=True)
+class Cell:
+    """One quantity of one block of the sheet, in SI units."""
+
+    status: str  # "stated" | "derived" | "conflict"
+    low: float | None  # None: unbounded
+    high: float | None
+    value: float | None  # the number to show: stated typical value or interval centre
+    unit: str  # SI unit of the numbers
+    display_unit: str = ""  # unit the user wrote, or a sensible one
+    implied_low: float | None = None  # for conflicts: what the rest of the spec implies
+    implied_high: float | None = None
+    assumed: bool = False  # a default value, not stated by the user
+    text: str = ""  # the value as the user wrote it (stated and conflict cells)
+
+
+@dataclass(frozen=True)
+class FileResult:
+    path: str
+    findings: tuple[Finding, ...]
+    sheet: dict[str, dict[str, Cell]] = field(default_factory=dict)
+    title: str | None = None
+
+    def count(self, severity: str) -> int:
+        return sum(1 for f in self.findings if f.severity == severity)

@@ -1,0 +1,98 @@
+"""The default terminal format: the sheet, then findings, then a summary (rich)."""
+
+from __future__ import annotations
+
+from rich.console import Console
+from rich.table import Table
+from rich.text import Text
+
+from ..findings import Cell, FileResult, SEVERITIES
+from ..units import choose_unit, format_number, format_quantity, pretty_unit
+
+_SEVERITY_STYLE = {"error": "bold red", "warning": "yellow", "note": "cyan"}
+_STATUS_STYLE = {"stated": "", "derived": "green", "conflict": "bold red"}
+
+
+class _Shower:
+    """Formats SI numbers in a unit, or bare (the unit said once per cell)."""
+
+    def __init__(self, units) -> None:
+        self._units = units
+
+    def __call__(self, si: float | None, unit: str, bare: bool = False) -> str:
+        if si is None:
+            return "—"
+        if bare:
+            return format_number(si / self._units.factor(unit)) if unit != "1" else format_number(si)
+        return format_quantity(self._units, si, unit)
+
+    def prefixed(self, si: float, unit: str) -> str:
+        return choose_unit(self._units, si, unit)
+
+
+def _span(show, low, high, unit) -> str:
+    if low is not None and high is not None:
+        return f"{show(low, unit, True)} … {show(high, unit, True)}"
+    return f"≥ {show(low, unit, True)}" if low is not None else f"≤ {show(high, unit, True)}"
+
+
+def _cell_text(cell: Cell, show) -> str:
+    unit = cell.display_unit or cell.unit
+    if cell.status in ("stated", "conflict"):
+        text = cell.text or show(cell.value, unit)
+    elif cell.low is not None and cell.high is not None and cell.high / cell.low <= 1 + 1e-9:
+        text = show(cell.value, unit)
+    elif cell.value is None or cell.low is None or cell.high is None:
+        text = _span(show, cell.low, cell.high, unit) + ("" if unit == "1" else f" {pretty_unit(unit)}")
+    else:
+        text = f"{show(cell.value, unit)}  [{_span(show, cell.low, cell.high, unit)}]"
+    if cell.status == "conflict" and (cell.implied_low is not None or cell.implied_high is not None):
+        ref = cell.implied_low if cell.implied_low is not None else cell.implied_high
+        unit = show.prefixed(ref, unit)
+        text += f"  ≠ implied [{_span(show, cell.implied_low, cell.implied_high, unit)}]" + (
+            "" if unit == "1" else f" {pretty_unit(unit)}")
+    return text
+
+
+def write(results: list[FileResult], out, options) -> None:
+    color = bool(options and options.color)
+    console = Console(file=out, color_system="auto" if color else None, force_terminal=color,
+                      no_color=not color, highlight=False, emoji=False,
+                      width=(options.width if options and options.width else None) or (None if color else 100))
+    show = _Shower(options.units)
+    for result in results:
+        header = Text(result.path, style="bold")
+        if result.title:
+            header.append(f" — {result.title}")
+        console.print(header)
+        if options is None or options.show_sheet:
+            for block, cells in result.sheet.items():
+                if not cells:
+                    continue
+                table = Table(show_header=True, header_style="bold", box=None, pad_edge=False)
+                table.add_column(block, no_wrap=True)
+                table.add_column("value")
+                table.add_column("status", no_wrap=True)
+                for name, cell in cells.items():
+                    status = cell.status + (" (default)" if cell.assumed else "")
+                    table.add_row(name, _cell_text(cell, show), Text(status, style=_STATUS_STYLE[cell.status]))
+                console.print(table)
+        for f in result.findings:
+            line = Text()
+            where = f"{f.path}:{f.line}:{f.column}" if f.line else f.path
+            line.append(where + ": ", style="bold")
+            line.append(f.severity, style=_SEVERITY_STYLE[f.severity])
+            line.append(f" [{f.rule}] ", style="dim")
+            line.append(f.message)
+            console.print(line)
+        console.print()
+    counts = {s: sum(r.count(s) for r in results) for s in SEVERITIES}
+    summary = Text()
+    parts = [(f"{counts[s]} {s}{'' if counts[s] == 1 else 's'}", _SEVERITY_STYLE[s] if counts[s] else "")
+             for s in SEVERITIES]
+    for i, (text, style) in enumerate(parts):
+        summary.append(text, style=style)
+        summary.append(", " if i < len(parts) - 1 else "")
+    n = len(results)
+    summary.append(f" in {n} file{'' if n == 1 else 's'}")
+    console.print(summary)

@@ -1,0 +1,197 @@
+"""Reading a spec file: YAML text to plain data plus the line of every node.
+
+PyYAML composes the node graph (with the C parser when it is available);
+this module constructs plain Python data from it *itself*, so that it can
+
+* report duplicate keys (PyYAML keeps the last one silently) with both lines,
+* reject tags that would construct objects (``!!python/...``) as findings,
+* bound the work an input can cause (nodes, aliases, depth, size),
+* remember the 1-based line and column of every key and value by its path.
+
+Nothing here raises on bad input: every problem becomes a ``Problem``.
+"""
+
+from __future__ import annotations
+
+from dataclasses import dataclass, field
+
+import yaml
+
+try:  # the C parser is much faster; both give marks
+    from yaml import CSafeLoader as _Loader
+except ImportError:  # pragma: no cover - depends on the PyYAML build
+    from yaml import SafeLoader as _Loader
+
+Path = tuple  # a path into the document: keys and list indices
+
+
+@dataclass(frozen=True)
+class Limits:
+    """Bounds on what one input file may make speccheck do (all configurable)."""
+
+    max_bytes: int = 10 * 1024 * 1024
+    max_nodes: int = 200_000  # constructed nodes, aliases expanded
+    max_depth: int = 64
+
+
+@dataclass(frozen=True)
+class Problem:
+    rule: str
+    message: str
+    line: int | None
+    column: int | None
+
+
+@dataclass
+class Document:
+    data: object = None
+    values: dict[Path, tuple[int, int]] = field(default_factory=dict)  # path -> (line, col) of the value
+    keys: dict[Path, tuple[int, int]] = field(default_factory=dict)  # path -> (line, col) of its key
+    problems: list[Problem] = field(default_factory=list)
+
+    def where(self, path: Path, key: bool = False) -> tuple[int | None, int | None]:
+        """Line and column of ``path``, or of its nearest ancestor that has one."""
+        table = self.keys if key else self.values
+        path = tuple(path)
+        while path:
+            if path in table:
+                return table[path]
+            if path in self.values:
+                return self.values[path]
+            path = path[:-1]
+        return self.values.get((), (1, 1))
+
+
+_SAFE_SCALARS = {
+    "tag:yaml.org,2002:str",
+    "tag:yaml.org,2002:int",
+    "tag:yaml.org,2002:float",
+    "tag:yaml.org,2002:bool",
+    "tag:yaml.org,2002:null",
+}
+_AS_TEXT = {"tag:yaml.org,2002:timestamp", "tag:yaml.org,2002:binary"}
+_MAP = "tag:yaml.org,2002:map"
+_SEQ = "tag:yaml.org,2002:seq"
+
+
+def _mark(node) -> tuple[int, int]:
+    return node.start_mark.line + 1, node.start_mark.column + 1
+
+
+class _Builder:
+    def __init__(self, doc: Document, limits: Limits) -> None:
+        self.doc = doc
+        self.limits = limits
+        self.nodes = 0
+        self.scalars = yaml.constructor.SafeConstructor()
+        self.active: set[int] = set()
+        self.stopped = False
+
+    def problem(self, rule: str, message: str, node) -> None:
+        self.doc.problems.append(Problem(rule, message, *_mark(node)))
+
+    def build(self, node, path: Path):
+        if self.stopped:
+            return None
+        self.nodes += 1
+        if self.nodes > self.limits.max_nodes:
+            self.stopped = True
+            self.problem("input-limit", f"the document expands to more than {self.limits.max_nodes} "
+                         "nodes (aliases included); reading stopped", node)
+            return None
+        if len(path) > self.limits.max_depth:
+            self.stopped = True
+            self.problem("input-limit", f"nesting deeper than {self.limits.max_depth} levels; reading stopped", node)
+            return None
+        if id(node) in self.active:
+            self.problem("yaml-syntax", "an alias refers to a node that contains it (a recursive structure)", node)
+            return None
+        self.doc.values.setdefault(path, _mark(node))
+        if isinstance(node, yaml.MappingNode):
+            return self._mapping(node, path)
+        if isinstance(node, yaml.SequenceNode):
+            return self._sequence(node, path)
+        return self._scalar(node)
+
+    def _mapping(self, node, path: Path) -> dict:
+        if node.tag != _MAP:
+            self.problem("unsupported-yaml-tag", f"tag {node.tag!r} is not allowed in a spec "
+                         "(speccheck never constructs objects from input)", node)
+            return None
+        self.active.add(id(node))
+        out: dict = {}
+        first: dict = {}
+        for key_node, value_node in node.value:
+            key = self._scalar(key_node) if isinstance(key_node, yaml.ScalarNode) else None
+            if not isinstance(key, (str, int, float, bool)) or key is None:
+                self.problem("schema-violation", "a mapping key must be a plain word", key_node)
+                continue
+            key = str(key)
+            if key in first:
+                line0 = first[key]
+                line1, _ = _mark(key_node)
+                self.problem("duplicate-key", f"key {key!r} appears twice (lines {line0} and {line1}); "
+                             "the second one is ignored (plain YAML would silently keep only the last)", key_node)
+                continue
+            first[key] = _mark(key_node)[0]
+            self.doc.keys[path + (key,)] = _mark(key_node)
+            out[key] = self.build(value_node, path + (key,))
+        self.active.discard(id(node))
+        return out
+
+    def _sequence(self, node, path: Path) -> list:
+        if node.tag != _SEQ:
+            self.problem("unsupported-yaml-tag", f"tag {node.tag!r} is not allowed in a spec "
+                         "(speccheck never constructs objects from input)", node)
+            return None
+        self.active.add(id(node))
+        out = [self.build(item, path + (i,)) for i, item in enumerate(node.value)]
+        self.active.discard(id(node))
+        return out
+
+    def _scalar(self, node):
+        if node.tag in _AS_TEXT:
+            return str(node.value)
+        if node.tag not in _SAFE_SCALARS:
+            self.problem("unsupported-yaml-tag", f"tag {node.tag!r} is not allowed in a spec "
+                         "(speccheck never constructs objects from input)", node)
+            return None
+        try:
+            return self.scalars.construct_object(node)
+        except Exception:  # e.g. an integer with more digits than Python converts
+            self.problem("invalid-value", f"cannot read the scalar {node.value[:40]!r}", node)
+            return None
+
+
+def load(text: str | bytes, limits: Limits = Limits()) -> Document:
+    """Parse spec text into a ``Document``; problems are collected, never raised."""
+    doc = Document()
+    if isinstance(text, bytes):
+        if len(text) > limits.max_bytes:
+            doc.problems.append(Problem("input-limit", f"the file is {len(text)} bytes, more than the limit "
+                                        f"of {limits.max_bytes}", 1, 1))
+            return doc
+        try:
+            text = text.decode("utf-8-sig")
+        except UnicodeDecodeError as exc:
+            doc.problems.append(Problem("yaml-syntax", f"the file is not UTF-8 text (byte {exc.start})", 1, 1))
+            return doc
+    try:
+        root = yaml.compose(text, Loader=_Loader)
+    except yaml.MarkedYAMLError as exc:
+        mark = exc.problem_mark or exc.context_mark
+        line, col = (mark.line + 1, mark.column + 1) if mark else (1, 1)
+        what = " ".join(p for p in (exc.context, exc.problem) if p)
+        doc.problems.append(Problem("yaml-syntax", f"YAML syntax error: {what}", line, col))
+        return doc
+    except yaml.YAMLError as exc:
+        doc.problems.append(Problem("yaml-syntax", f"YAML error: {exc}", 1, 1))
+        return doc
+    except RecursionError:
+        doc.problems.append(Problem("input-limit", "the document is nested too deeply to read", 1, 1))
+        return doc
+    if root is None:
+        doc.values[()] = (1, 1)
+        return doc
+    doc.data = _Builder(doc, limits).build(root, ())
+    return doc

@@ -1,0 +1,138 @@
+"""The rule catalogue: every finding speccheck can report, one row each.
+
+A rule has a stable kebab-case id, a default severity, a one-line summary and
+an explanation (the physics or the reason, the formula, the source or
+"common practice"), with a small failing and passing example.  Checks only
+name a rule id; the checker looks the severity up here, so an unknown id
+fails loudly.
+"""
+
+from __future__ import annotations
+
+from dataclasses import dataclass
+
+from .findings import SEVERITIES
+
+
+@dataclass(frozen=True)
+class Rule:
+    id: str
+    severity: str
+    summary: str
+    explanation: str
+    failing: str = ""
+    passing: str = ""
+
+    def __post_init__(self) -> None:
+        if self.severity not in SEVERITIES:
+            raise ValueError(f"rule {self.id}: unknown severity {self.severity}")
+        if self.id != self.id.lower() or " " in self.id:
+            raise ValueError(f"rule id {self.id!r} must be kebab-case")
+
+
+_RULES = (
+    # ---- reading the file
+    Rule("yaml-syntax", "error", "the file is not valid YAML",
+         "The spec must be a YAML document; the message gives the parser's reason and position.",
+         "laser: {wavelength: 800 nm", "laser: {wavelength: 800 nm}"),
+    Rule("duplicate-key", "error", "a key appears twice in one mapping",
+         "YAML parsers usually keep the last of two equal keys without a word, so one of two "
+         "numbers is silently lost. speccheck reports both lines and keeps the first.",
+         "laser:\n  pulse_energy: 25 nJ\n  pulse_energy: 2.5 nJ", "laser:\n  pulse_energy: 25 nJ"),
+    Rule("unsupported-yaml-tag", "error", "a YAML tag that would construct an object",
+         "Tags such as !!python/object are refused: speccheck never runs or constructs anything "
+         "from its input.", "laser: !!python/object/apply:os.system [ls]", "laser: {}"),
+    Rule("input-limit", "error", "the input exceeds a resource limit",
+         "Files larger than the size limit, documents that expand (through aliases) to too many "
+         "nodes, or nest too deeply are not read further, so no input can exhaust memory or time.",
+         "a: &a [*b, *b, ...]  (an alias bomb)", "a small spec"),
+    Rule("unreadable-file", "error", "a file could not be read",
+         "The file does not exist, is not readable, or is a directory given where a file was expected."),
+    # ---- the schema
+    Rule("schema-violation", "error", "the document does not follow the spec schema",
+         "The spec is validated against the published JSON Schema (schemas/, draft 2020-12); "
+         "the message names the offending value and what the schema expects.",
+         "spec_version: 2", "spec_version: 1"),
+    Rule("unknown-key", "error", "a key the spec format does not define",
+         "Every key of the spec format is fixed by the schema; an unknown key is usually a typo, "
+         "so the message suggests the closest known key.",
+         "laser:\n  pulse_enrgy: 25 nJ", "laser:\n  pulse_energy: 25 nJ"),
+    # ---- single values
+    Rule("invalid-value", "error", "a value that cannot be read as a quantity",
+         "A value is '<number> <unit>', optionally with '± <tolerance>' or a bound '>= …' / '<= …', "
+         "or a mapping {min, typical, max}.",
+         "pulse_energy: about twenty-five", "pulse_energy: 25 nJ ± 1 nJ"),
+    Rule("missing-unit", "error", "a dimensional quantity written without a unit",
+         "Only dimensionless quantities (m2, duty_cycle, refractive_index, …) may be bare numbers; "
+         "a bare 25 for an energy could be J, mJ or nJ.", "pulse_energy: 25", "pulse_energy: 25 nJ"),
+    Rule("unknown-unit", "error", "a unit pint does not know",
+         "Units are read by pint; the message gives pint's reason.", "pulse_energy: 25 nanojewels",
+         "pulse_energy: 25 nJ"),
+    Rule("wrong-dimension", "error", "a unit of the wrong dimension for its quantity",
+         "Each quantity has one dimension (spectral_bandwidth accepts a length, a frequency or a "
+         "wavenumber); the message says what was expected.", "average_power: 2 J", "average_power: 2 W"),
+    Rule("non-positive-value", "error", "a zero or negative value",
+         "Every quantity of a block is a positive magnitude.", "pulse_duration: -150 fs",
+         "pulse_duration: 150 fs"),
+    Rule("non-finite-value", "error", "NaN or an infinite value",
+         "Values must be finite numbers.", "pulse_energy: .nan", "pulse_energy: 25 nJ"),
+    Rule("empty-interval", "error", "min, typical and max that contradict each other",
+         "In a mapping {min, typical, max}, min ≤ typical ≤ max must hold.",
+         "average_power: {min: 25 W, max: 20 W}", "average_power: {min: 20 W, max: 25 W}"),
+    Rule("duplicate-quantity", "error", "one quantity stated twice under different keys",
+         "spectral_bandwidth and its twins (…_wavelength, …_wavenumber) state the same quantity; "
+         "state it once.", "spectral_bandwidth: 8 nm\nspectral_bandwidth_wavelength: 8 nm",
+         "spectral_bandwidth: 8 nm"),
+    # ---- physics
+    Rule("relation-conflict", "error", "stated values that physics says cannot all be true",
+         "The stated values are checked against every relation of the relation table (energy = "
+         "power / rate, peak power = a·E/τ, intensity = k·P/(πw²), Δν = cΔλ/λ², …) with their "
+         "tolerances. When they cannot all hold, speccheck names the value whose removal makes the "
+         "rest consistent (the suspect), the value the rest implies for it, and the ratio between "
+         "the two. `speccheck relations` lists the table.",
+         "average_power: 2 W\nrepetition_rate: 80 MHz\npulse_energy: 25 µJ",
+         "average_power: 2 W\nrepetition_rate: 80 MHz\npulse_energy: 25 nJ"),
+    Rule("below-transform-limit", "error", "bandwidth and duration whose product is below the transform limit",
+         "A pulse of a given shape cannot be shorter than its Fourier transform limit: "
+         "Δν·τ ≥ 0.441 (Gaussian), 0.315 (sech²), 0.221 (Lorentzian), 0.886 (flat top) for FWHMs "
+         "(published pulse-shape tables). A smaller product is physically impossible; often the "
+         "autocorrelation width or the bandwidth in the wrong unit is the cause.",
+         "wavelength: 800 nm\nspectral_bandwidth: 2 nm\npulse_duration: 50 fs",
+         "wavelength: 800 nm\nspectral_bandwidth: 20 nm\npulse_duration: 50 fs"),
+    Rule("strongly-chirped", "note", "a time-bandwidth product far above the transform limit",
+         "A product more than twice the transform limit means a strongly chirped pulse (common "
+         "practice): it could be compressed to a much shorter duration, or one of the two widths "
+         "is not what it says.",
+         "spectral_bandwidth: 40 nm\npulse_duration: 500 fs\nwavelength: 800 nm",
+         "spectral_bandwidth: 10 nm\npulse_duration: 100 fs\nwavelength: 800 nm"),
+    Rule("pulse-longer-than-period", "error", "a pulse longer than the time between pulses",
+         "The duty cycle τ·f_rep must be below 1, or the 'pulses' overlap into a continuous beam.",
+         "repetition_rate: 80 GHz\npulse_duration: 20 ps", "repetition_rate: 80 MHz\npulse_duration: 20 ps"),
+    Rule("sub-cycle-pulse", "warning", "fewer than one optical cycle within the pulse",
+         "N = τ / T_0 = τ c / λ below 1 is a sub-cycle pulse: possible only in exotic sources, and "
+         "usually a unit slip in the duration or the wavelength.",
+         "wavelength: 800 nm\npulse_duration: 1.5 fs", "wavelength: 800 nm\npulse_duration: 15 fs"),
+    Rule("outside-ultrafast-range", "note", "a pulse duration outside 1 fs – 100 ps",
+         "speccheck is made for femtosecond to picosecond pulses; the relations still hold outside "
+         "that range, but a value there is often a unit slip.",
+         "pulse_duration: 150 ns", "pulse_duration: 150 fs"),
+    Rule("m2-below-one", "error", "a beam quality factor M² below 1",
+         "M² ≥ 1 for every real beam; 1 is the ideal Gaussian (ISO 11146).", "m2: 0.8", "m2: 1.1"),
+    Rule("assumed-shape", "note", "a number derived with an assumed pulse shape or beam profile",
+         "Peak power, autocorrelation width, transform limit and intensity depend on the pulse shape "
+         "and beam profile; when the spec does not state them, Gaussian is assumed.",
+         "pulse_energy: 1 mJ\npulse_duration: 30 fs", "pulse_energy: 1 mJ\npulse_duration: 30 fs\n"
+         "pulse_shape: gaussian"),
+)
+
+RULES: dict[str, Rule] = {r.id: r for r in _RULES}
+
+if len(RULES) != len(_RULES):  # pragma: no cover - table sanity
+    raise ValueError("duplicate rule ids")
+
+
+def rule(rule_id: str) -> Rule:
+    try:
+        return RULES[rule_id]
+    except KeyError:
+        raise KeyError(f"unknown rule id {rule_id!r}") from None

@@ -1,0 +1,89 @@
+"""Validation against the published JSON Schema, errors mapped to YAML lines.
+
+The schema file lives in ``schemas/`` at the top of the repository and is
+installed as the package ``speccheck.schemas``.  The validator is compiled
+once per process.  Errors are ranked like ``jsonschema.exceptions.best_match``
+(most specific first), unknown keys get a "did you mean" suggestion, and every
+error is located through the document's path-to-line map.
+"""
+
+from __future__ import annotations
+
+import difflib
+import json
+from functools import lru_cache
+from importlib import resources
+from pathlib import Path
+
+SCHEMA_FILE = "spec-v1.schema.json"
+
+
+def schema_text() -> str:
+    try:
+        return resources.files("speccheck.schemas").joinpath(SCHEMA_FILE).read_text("utf-8")
+    except ModuleNotFoundError:  # running from a source tree that is not installed
+        return (Path(__file__).resolve().parent.parent / "schemas" / SCHEMA_FILE).read_text("utf-8")
+
+
+@lru_cache(maxsize=1)
+def schema() -> dict:
+    return json.loads(schema_text())
+
+
+@lru_cache(maxsize=1)
+def _validator():
+    from jsonschema import Draft202012Validator
+
+    return Draft202012Validator(schema())
+
+
+def _subschema(path) -> dict:
+    """The schema that applies at a document path (objects only; refs followed)."""
+    node = schema()
+    for key in path:
+        while "$ref" in node:
+            node = schema()["$defs"][node["$ref"].rsplit("/", 1)[1]]
+        node = node.get("properties", {}).get(key, {})
+    while "$ref" in node:
+        node = schema()["$defs"][node["$ref"].rsplit("/", 1)[1]]
+    return node
+
+
+def validate(data) -> list[tuple[str, tuple, str, bool]]:
+    """Schema problems as (rule, path, message, at_key), in document order."""
+    from jsonschema.exceptions import relevance
+
+    problems = []
+    for error in sorted(_validator().iter_errors(data), key=relevance):
+        path = tuple(error.absolute_path)
+        if error.validator == "additionalProperties" and isinstance(error.instance, dict):
+            known = sorted(_subschema(path).get("properties", {}))
+            for key in sorted(set(error.instance) - set(known), key=str):
+                where = ".".join(map(str, path)) or "the top level"
+                guess = difflib.get_close_matches(str(key), known, n=1, cutoff=0.6)
+                hint = f"; did you mean {guess[0]!r}?" if guess else f"; known keys: {', '.join(known)}"
+                problems.append(("unknown-key", path + (key,), f"unknown key {key!r} in {where}{hint}", True))
+            continue
+        problems.append(("schema-violation", path, _message(error, path), False))
+    return problems
+
+
+def _message(error, path) -> str:
+    where = ".".join(map(str, path)) or "the document"
+    if error.validator == "anyOf" and error.schema is schema()["$defs"]["quantity"]:
+        return (f"{where}: expected a value like '25 nJ', '25 nJ ± 1 nJ', '>= 20 W' or "
+                f"{{min: …, typical: …, max: …}}, got {_short(error.instance)}")
+    if error.validator == "const":
+        return f"{where}: must be {error.validator_value!r}, got {_short(error.instance)}"
+    if error.validator == "enum":
+        return f"{where}: {_short(error.instance)} is not one of {', '.join(map(str, error.validator_value))}"
+    if error.validator == "required":
+        return f"{where}: {error.message}"
+    if error.validator == "type":
+        return f"{where}: expected {error.validator_value}, got {_short(error.instance)}"
+    return f"{where}: {error.message}"
+
+
+def _short(value) -> str:
+    text = repr(value)
+    return text if len(text) <= 60 else text[:57] + "..."

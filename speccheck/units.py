@@ -1,0 +1,205 @@
+"""The unit boundary: the one place speccheck talks to pint.
+
+A ``UnitSystem`` owns one pint ``UnitRegistry`` per process (created by the
+caller and passed in, never a hidden global).  It parses a *unit string* once
+into a plain ``Unit`` (a factor to SI and a dimension key) and caches it, so
+the engine works on floats.  Only unit strings ever reach pint, never numbers
+or expressions: a unit string is screened first, so nothing like
+``10**10**10`` can make pint compute.  Physical constants are read from pint's
+CODATA values here and nowhere else.
+"""
+
+from __future__ import annotations
+
+import math
+import re
+from dataclasses import dataclass
+from functools import lru_cache
+
+from .quantities import QUANTITIES
+
+# Dimension keys speccheck knows, by SI unit, with a human name.
+DIMENSION_NAMES: dict[str, str] = {
+    "m": "length",
+    "s": "time",
+    "Hz": "frequency",
+    "1/m": "wavenumber",
+    "J": "energy",
+    "W": "power",
+    "W/m^2": "intensity",
+    "J/m^2": "fluence",
+    "V/m": "electric field",
+    "1": "dimensionless",
+    "s^2": "group-delay dispersion",
+    "s^3": "third-order dispersion",
+}
+
+MAX_UNIT_LENGTH = 64
+
+# A unit string may contain letters (with µ μ Ω Å °), %, spaces, * / · ^ ( ),
+# and digits only as small exponents or as the "1" of "1/cm".
+_UNIT_CHARS = re.compile(r"^[A-Za-zµμΩÅ°%²³¹⁰⁴⁵⁶⁷⁸⁹⁻ ./*^()·⋅\-0-9]+$")
+_DIGITS = re.compile(r"\d+")
+_EXPONENT_BEFORE = re.compile(r"(\^|\*\*)\s*-?\s*$")
+_SUPERSCRIPTS = str.maketrans({"²": "^2", "³": "^3", "¹": "^1", "·": "*", "⋅": "*", "μ": "µ"})
+_SUPER_MINUS = re.compile(r"⁻\^?(\d)")
+
+
+class UnitError(ValueError):
+    """A unit string that is not a usable unit; the message says why."""
+
+
+@dataclass(frozen=True)
+class Unit:
+    text: str  # as the user wrote it (normalised for display)
+    factor: float  # multiply a value in this unit by factor to get SI
+    dimension: str | None  # a key of DIMENSION_NAMES, or None if unknown
+    dimensionality: str  # pint's own description, for messages
+
+
+@dataclass(frozen=True)
+class Constants:
+    c: float
+    h: float
+    eps0: float
+    e: float
+    m_e: float
+
+
+def normalise_unit_text(text: str) -> str:
+    text = text.strip()
+    text = _SUPER_MINUS.sub(lambda m: "^-" + m.group(1), text)
+    return text.translate(_SUPERSCRIPTS).replace("**", "^")
+
+
+def screen_unit_text(text: str) -> None:
+    """Reject unit strings that are not plain unit expressions (before pint sees them)."""
+    if len(text) > MAX_UNIT_LENGTH:
+        raise UnitError(f"unit text is longer than {MAX_UNIT_LENGTH} characters")
+    if not _UNIT_CHARS.match(text):
+        bad = sorted({ch for ch in text if not _UNIT_CHARS.match(ch)})
+        raise UnitError(f"unit contains characters no unit has: {''.join(bad)!r}")
+    for m in _DIGITS.finditer(text):
+        before = text[: m.start()]
+        is_exponent = _EXPONENT_BEFORE.search(before) is not None and len(m.group()) <= 2
+        is_one_over = m.group() == "1" and text[m.end() :].lstrip().startswith("/")
+        if not (is_exponent or is_one_over):
+            raise UnitError(f"unexpected number {m.group()!r} inside the unit")
+
+
+class UnitSystem:
+    """One pint registry and the caches built on it."""
+
+    def __init__(self, registry=None, cache_folder: str | None = ":auto:") -> None:
+        if registry is None:
+            import pint
+
+            try:
+                registry = pint.UnitRegistry(cache_folder=cache_folder)
+            except Exception:  # an unwritable cache folder must not stop a check
+                registry = pint.UnitRegistry()
+        self.registry = registry
+        self._dimensions = {self._dimensionality(key): key for key in DIMENSION_NAMES}
+        self.parse = lru_cache(maxsize=4096)(self._parse)
+        q = registry.Quantity
+        self.constants = Constants(
+            c=q(1, "speed_of_light").to_base_units().magnitude,
+            h=q(1, "planck_constant").to_base_units().magnitude,
+            eps0=q(1, "vacuum_permittivity").to_base_units().magnitude,
+            e=q(1, "elementary_charge").to_base_units().magnitude,
+            m_e=q(1, "electron_mass").to_base_units().magnitude,
+        )
+
+    def _dimensionality(self, text: str):
+        if text == "1":
+            return frozenset()
+        units = self.registry.parse_units(text.replace("^", "**"))
+        return frozenset(self.registry.get_dimensionality(units).items())
+
+    def _parse(self, text: str) -> Unit:
+        shown = normalise_unit_text(text)
+        if shown in ("%", "percent"):
+            return Unit("%", 0.01, "1", "dimensionless")
+        screen_unit_text(shown)
+        try:
+            units = self.registry.parse_units(shown.replace("^", "**"))
+            quantity = self.registry.Quantity(1.0, units).to_base_units()
+            factor = float(quantity.magnitude)
+        except Exception as exc:  # pint's errors are many kinds; all mean "not a unit"
+            raise UnitError(_pint_reason(shown, exc)) from None
+        if not math.isfinite(factor) or factor == 0.0:
+            raise UnitError(f"unit {shown!r} has no finite conversion to SI")
+        dims = frozenset(quantity.dimensionality.items())
+        dimension = self._dimensions.get(dims)
+        described = str(quantity.dimensionality) or "dimensionless"
+        return Unit(shown, factor, dimension, described)
+
+    def factor(self, text: str) -> float:
+        return self.parse(text).factor
+
+
+def _pint_reason(text: str, exc: Exception) -> str:
+    name = type(exc).__name__
+    if name == "UndefinedUnitError":
+        return f"unknown unit {text!r}"
+    if name == "DefinitionSyntaxError" or isinstance(exc, SyntaxError):
+        return f"{text!r} is not a unit expression"
+    if isinstance(exc, OverflowError):
+        return f"unit {text!r} overflows when converted to SI"
+    return f"{text!r} is not a usable unit ({name})"
+
+
+# ---------------------------------------------------------------- formatting
+
+_PREFIXES = (
+    (1e-18, "a"), (1e-15, "f"), (1e-12, "p"), (1e-9, "n"), (1e-6, "µ"), (1e-3, "m"),
+    (1.0, ""), (1e3, "k"), (1e6, "M"), (1e9, "G"), (1e12, "T"), (1e15, "P"), (1e18, "E"),
+)
+_PREFIXABLE = {"W", "J", "Hz", "s", "eV", "V/m", "m"}
+# Display units whose natural prefix is fixed by habit; derived values are shown in them.
+_FIXED = {"W/cm^2", "J/cm^2", "1/cm", "1", "%"}
+
+
+def format_number(x: float, digits: int = 4) -> str:
+    if x == 0 or not math.isfinite(x):
+        return repr(x) if not math.isfinite(x) else "0"
+    exponent = math.floor(math.log10(abs(x)))
+    if -3 <= exponent < 5:
+        decimals = max(digits - 1 - exponent, 0)
+        text = f"{x:.{decimals}f}"
+        if "." in text:
+            text = text.rstrip("0").rstrip(".")
+        return text
+    mantissa = f"{x / 10 ** exponent:.{digits - 1}f}".rstrip("0").rstrip(".")
+    return f"{mantissa}e{exponent}"
+
+
+def pretty_unit(text: str) -> str:
+    return text.replace("^2", "²").replace("^3", "³").replace("^-1", "⁻¹").replace("**", "^")
+
+
+def choose_unit(units: UnitSystem, si_value: float, display_unit: str) -> str:
+    """The unit to show a derived value in: the display unit with a sensible prefix."""
+    if display_unit in _FIXED or not math.isfinite(si_value) or si_value == 0:
+        return display_unit
+    base = display_unit
+    for _, p in _PREFIXES + ((1e-6, "u"),):
+        if p and display_unit.startswith(p) and display_unit[len(p):] in _PREFIXABLE:
+            base = display_unit[len(p):]
+            break
+    if base not in _PREFIXABLE:
+        return display_unit
+    in_base = si_value / units.factor(base)
+    best = base
+    for scale, p in _PREFIXES:
+        if abs(in_base) >= scale * 0.9995:
+            best = p + base
+    return best
+
+
+def format_quantity(units: UnitSystem, si_value: float, unit_text: str) -> str:
+    if unit_text == "1":
+        return format_number(si_value)
+    value = si_value / units.factor(unit_text)
+    sep = "" if unit_text == "%" else " "
+    return f"{format_number(value)}{sep}{pretty_unit(unit_text)}"

@@ -1,0 +1,219 @@
+"""The grammar of a stated value, turned into an interval in SI units.
+
+A value is one of
+
+* ``"25 nJ"``                  a plain value: the spec's default tolerance applies
+* ``"25 nJ ± 1 nJ"``, ``"25 nJ +/- 4%"``, ``"(25 ± 1) nJ"`` style ``"25 ± 1 nJ"``
+* ``">= 20 W"``, ``"<= 300 fs"``, ``"> 1 mJ"``, ``"< 5 %"``  one-sided bounds
+* ``{min: 20 W, typical: 22 W, max: 25 W}`` (any subset)
+* a bare YAML number, only for dimensionless quantities (``m2: 1.1``)
+
+Numbers are read by a regular expression and ``float``, never evaluated;
+only the unit text goes to ``UnitSystem``.  Every problem raises
+``ValueProblem`` with a rule id and a message saying what was expected.
+"""
+
+from __future__ import annotations
+
+import math
+import re
+from dataclasses import dataclass
+
+from .quantities import ALIASES, BY_NAME
+from .units import DIMENSION_NAMES, UnitError, UnitSystem
+
+_NUMBER = r"[+-]?(?:\d+(?:\.\d*)?|\.\d+)(?:[eE][+-]?\d+)?"
+_TIMES_TEN = r"(?:\s*[x×*]\s*10\s*(?:\^|\*\*)\s*([+-]?\d{1,4}))?"
+_VALUE = re.compile(rf"^\s*({_NUMBER}){_TIMES_TEN}\s*(.*?)\s*$")
+_PLUS_MINUS = re.compile(r"\s*(?:±|\+/-|\+-)\s*")
+_BOUND = re.compile(r"^\s*(>=|<=|≥|≤|=>|=<|>|<)\s*(.*)$")
+_BOUND_SIDE = {">=": "low", "≥": "low", "=>": "low", ">": "low",
+               "<=": "high", "≤": "high", "=<": "high", "<": "high"}
+_SPACES = str.maketrans({"\u00a0": " ", "\u2009": " ", "\u202f": " ", "\u2212": "-", "\t": " "})
+
+MAX_VALUE_LENGTH = 200
+
+
+class ValueProblem(ValueError):
+    def __init__(self, rule: str, message: str) -> None:
+        super().__init__(message)
+        self.rule = rule
+        self.message = message
+
+
+@dataclass(frozen=True)
+class Stated:
+    quantity: str  # the quantity the value is for (an alias resolved by dimension)
+    low: float  # SI; 0.0 means no lower bound
+    high: float  # SI; math.inf means no upper bound
+    typical: float | None  # the number written, if one was
+    unit: str  # unit text to show this quantity in ("1" if dimensionless)
+    text: str  # the value as written, for messages
+
+
+def parse_tolerance(raw, default: float = 0.05) -> float:
+    """The spec's default relative tolerance ("5%", 0.05, "2 %")."""
+    if isinstance(raw, bool) or raw is None:
+        raise ValueProblem("invalid-value", f"tolerance must be a percentage like '5%', got {raw!r}")
+    if isinstance(raw, (int, float)):
+        value = float(raw)
+    else:
+        text = str(raw).strip().translate(_SPACES)
+        match = re.fullmatch(rf"({_NUMBER})\s*(%?)", text)
+        if not match:
+            raise ValueProblem("invalid-value", f"tolerance must be a percentage like '5%', got {raw!r}")
+        value = float(match.group(1)) / (100.0 if match.group(2) else 1.0)
+    if not (math.isfinite(value) and 0.0 <= value < 1.0):
+        raise ValueProblem("invalid-value", f"tolerance must be between 0% and 100%, got {raw!r}")
+    return value
+
+
+class ValueParser:
+    def __init__(self, units: UnitSystem) -> None:
+        self.units = units
+
+    # ---------------------------------------------------------------- public
+    def parse(self, key: str, raw, tolerance: float) -> Stated:
+        """Parse the value of spec key ``key`` (a quantity name or an alias)."""
+        if isinstance(raw, dict):
+            return self._parse_mapping(key, raw, tolerance)
+        if isinstance(raw, bool) or raw is None:
+            raise ValueProblem("invalid-value", f"{key}: expected a number with a unit, got {_show(raw)}")
+        if isinstance(raw, (int, float)):
+            return self._from_number(key, float(raw), None, tolerance, str(raw))
+        text = str(raw)
+        if len(text) > MAX_VALUE_LENGTH:
+            raise ValueProblem("invalid-value", f"{key}: value is longer than {MAX_VALUE_LENGTH} characters")
+        return self._parse_text(key, text.translate(_SPACES), tolerance)
+
+    # --------------------------------------------------------------- helpers
+    def _parse_text(self, key: str, text: str, tolerance: float) -> Stated:
+        bound = _BOUND.match(text)
+        if bound:
+            number, unit = self._number_and_unit(key, bound.group(2), text)
+            quantity, si, unit_text = self._to_si(key, number, unit, text)
+            if si <= 0.0 and _BOUND_SIDE[bound.group(1)] == "high":
+                raise ValueProblem("non-positive-value", f"{key}: an upper bound of {text.strip()!r} leaves no positive value")
+            if _BOUND_SIDE[bound.group(1)] == "low":
+                return Stated(quantity, max(si, 0.0), math.inf, None, unit_text, text.strip())
+            return Stated(quantity, 0.0, si, None, unit_text, text.strip())
+        parts = _PLUS_MINUS.split(text)
+        if len(parts) > 2:
+            raise ValueProblem("invalid-value", f"{key}: more than one ± in {text.strip()!r}")
+        if len(parts) == 2:
+            return self._parse_plus_minus(key, parts[0], parts[1], text)
+        number, unit = self._number_and_unit(key, text, text)
+        return self._from_number(key, number, unit, tolerance, text.strip())
+
+    def _parse_plus_minus(self, key: str, main: str, tol: str, text: str) -> Stated:
+        number, unit = self._number_and_unit(key, main, text)
+        tol_number, tol_unit = self._number_and_unit(key, tol, text)
+        if tol_number < 0 or not math.isfinite(tol_number):
+            raise ValueProblem("invalid-value", f"{key}: the ± part of {text.strip()!r} must be a non-negative number")
+        if tol_unit in ("%", "percent"):
+            rel = tol_number / 100.0
+            if rel >= 1.0:
+                raise ValueProblem("invalid-value", f"{key}: a tolerance of 100% or more in {text.strip()!r} says nothing")
+            return self._from_number(key, number, unit, rel, text.strip())
+        if not unit and tol_unit:  # "25 ± 1 nJ": both in the unit written last
+            unit = tol_unit
+        quantity, si, unit_text = self._to_si(key, number, unit, text)
+        _, tol_si, _ = self._to_si(key, tol_number, tol_unit or unit, text, positive=False)
+        _positive(key, si, text)
+        return Stated(quantity, max(si - tol_si, 0.0), si + tol_si, si, unit_text, text.strip())
+
+    def _parse_mapping(self, key: str, raw: dict, tolerance: float) -> Stated:
+        parsed: dict[str, Stated] = {}
+        for name in ("min", "typical", "max"):
+            if name in raw:
+                parsed[name] = self.parse(f"{key}.{name}", raw[name], 0.0)
+        if not parsed:
+            raise ValueProblem("invalid-value", f"{key}: give at least one of min, typical, max")
+        quantities = {s.quantity for s in parsed.values()}
+        if len(quantities) > 1:
+            raise ValueProblem("wrong-dimension", f"{key}: min, typical and max must have the same dimension")
+        first = next(iter(parsed.values()))
+        text = ", ".join(f"{k}: {v.text}" for k, v in parsed.items())
+        if set(parsed) == {"typical"}:
+            t = parsed["typical"].typical
+            return Stated(first.quantity, t * (1 - tolerance), t * (1 + tolerance), t, first.unit, text)
+        low = parsed["min"].typical if "min" in parsed else 0.0
+        high = parsed["max"].typical if "max" in parsed else math.inf
+        typical = parsed["typical"].typical if "typical" in parsed else None
+        if low > high or (typical is not None and not low <= typical <= high):
+            raise ValueProblem("empty-interval", f"{key}: min ≤ typical ≤ max does not hold in {{{text}}}")
+        return Stated(first.quantity, low, high, typical, first.unit, "{" + text + "}")
+
+    def _from_number(self, key, number: float, unit: str | None, tolerance: float, text: str) -> Stated:
+        quantity, si, unit_text = self._to_si(key, number, unit, text)
+        _positive(key, si, text)
+        return Stated(quantity, si * (1 - tolerance), si * (1 + tolerance), si, unit_text, text)
+
+    def _number_and_unit(self, key: str, part: str, text: str) -> tuple[float, str]:
+        match = _VALUE.match(part)
+        if not match and part.strip().lower().lstrip("+-.").startswith(("nan", "inf")):
+            raise ValueProblem("non-finite-value", f"{key}: {text.strip()!r} is not a finite number")
+        if not match:
+            raise ValueProblem(
+                "invalid-value",
+                f"{key}: cannot read {text.strip()!r}; expected a number and a unit like '25 nJ', "
+                "a tolerance like '25 nJ ± 1 nJ', or a bound like '>= 20 W'",
+            )
+        number = float(match.group(1))
+        if match.group(2) is not None:
+            number *= 10.0 ** int(match.group(2)) if abs(int(match.group(2))) < 400 else math.inf
+        if math.isnan(number) or math.isinf(number):
+            raise ValueProblem("non-finite-value", f"{key}: {text.strip()!r} is not a finite number")
+        return number, match.group(3)
+
+    def _to_si(self, key, number: float, unit: str | None, text: str, positive: bool = True):
+        """Resolve the quantity by the unit's dimension and convert to SI."""
+        base = key.split(".")[0]
+        names = ALIASES.get(base) or {BY_NAME[base].si_unit: base}
+        if not math.isfinite(number):
+            raise ValueProblem("non-finite-value", f"{key}: {text.strip()!r} is not a finite number")
+        if not unit:
+            if "1" in names:
+                return names["1"], number, "1"
+            expected = " or ".join(DIMENSION_NAMES[d] for d in names)
+            raise ValueProblem(
+                "missing-unit",
+                f"{key}: {text.strip()!r} has no unit; expected {_article(expected)} {expected} such as "
+                f"'{_example(names)}'",
+            )
+        try:
+            parsed = self.units.parse(unit)
+        except UnitError as exc:
+            raise ValueProblem("unknown-unit", f"{key}: {exc}") from None
+        if parsed.dimension not in names:
+            got = DIMENSION_NAMES.get(parsed.dimension or "", parsed.dimensionality)
+            expected = " or ".join(DIMENSION_NAMES[d] for d in names)
+            raise ValueProblem(
+                "wrong-dimension",
+                f"{key}: {text.strip()!r} is {_article(got)} {got}, expected {_article(expected)} {expected} (e.g. '{_example(names)}')",
+            )
+        si = number * parsed.factor
+        if not math.isfinite(si):
+            raise ValueProblem("non-finite-value", f"{key}: {text.strip()!r} overflows in SI units")
+        return names[parsed.dimension], si, parsed.text
+
+
+_EXAMPLES = {"m": "800 nm", "s": "150 fs", "Hz": "80 MHz", "1/m": "100 cm^-1", "J": "25 nJ",
+             "W": "2 W", "W/m^2": "1e14 W/cm^2", "J/m^2": "1 J/cm^2", "V/m": "1e9 V/m"}
+
+
+def _example(names: dict[str, str]) -> str:
+    return " or ".join(_EXAMPLES.get(d, "1") for d in names)
+
+
+def _positive(key: str, si: float, text: str) -> None:
+    if si <= 0.0:
+        raise ValueProblem("non-positive-value", f"{key}: {text.strip()!r} must be positive")
+
+
+def _show(raw) -> str:
+    return "nothing" if raw is None else repr(raw)
+
+
+def _article(noun: str) -> str:
+    return "an" if noun[:1] in "aeiou" else "a"

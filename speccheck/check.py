@@ -152,6 +152,22 @@ class _BlockCheck:
             return f"at most {self.show(quantity, high)}"
         return "anything"
 
+    def nearest(self, quantities, to: str) -> str:
+        """The quantity closest to ``to`` in the relation graph (then first in the file)."""
+        distance = {to: 0}
+        frontier = [to]
+        while frontier:
+            nxt = []
+            for q in frontier:
+                for r in self.net.touching[self.net.index[q]]:
+                    for k, _ in self.net.relations[r][1]:
+                        name = self.net.names[k]
+                        if name not in distance:
+                            distance[name] = distance[q] + 1
+                            nxt.append(name)
+            frontier = nxt
+        return min(quantities, key=lambda q: (distance.get(q, 99), self.report.doc.where(self.at(q))))
+
     def first_in_file(self, quantities) -> str:
         return min(quantities, key=lambda q: self.report.doc.where(self.at(q)))
 
@@ -255,8 +271,8 @@ class _BlockCheck:
                 via = d.state.via(s)
                 self.report.add(
                     "relation-conflict",
-                    f"{self.name}.{q} = {self.stated[q].text} does not follow from the rest of the spec: "
-                    f"{self.describe_support(support)} imply {text} (via {self.describe_via(via)})."
+                    f"{self.name}.{q} is stated as {self.stated[q].text}, but the rest of the spec "
+                    f"({self.describe_support(support)}) implies {text}, via {self.describe_via(via)}."
                     + self.ratio_text(q, centre),
                     self.at(q), quantities=[self.dotted(q)] + [self.dotted(names[i]) for i in sorted(support)
                                                               if names[i] in self.stated],
@@ -335,7 +351,7 @@ class _BlockCheck:
             q = limit.quantity
             i = self.net.index[q]
             support = self.diagnosis.state.support(i) - self.fixed
-            where = q if q in self.stated else self.first_in_file([self.net.names[k] for k in support] or [q])
+            where = q if q in self.stated else self.nearest([self.net.names[k] for k in support] or [q], q)
             origin = "" if q in self.stated else f" (from {self.describe_support(support)})"
             bound = limit.bound(self.context)
             what = limit.what.format(shape=self.context.shape.name)
@@ -356,7 +372,7 @@ class _BlockCheck:
             if key in self.block:
                 continue
             relying = sorted(
-                q for q, cell in cells.items() if cell.status == "derived"
+                q for q, cell in cells.items() if cell.status == "derived" and not BY_NAME[q].secondary
                 and any(key in BY_ID[r].uses for r in state.via(self.net.index[q])))
             if relying:
                 self.report.add(

@@ -24,6 +24,7 @@ class Quantity:
     display_unit: str  # preferred unit for derived values (engineering prefix applied)
     meaning: str
     dimensionless: bool = False
+    secondary: bool = False  # a restatement of another quantity (not worth a note of its own)
 
     def __post_init__(self) -> None:
         if not self.name.isidentifier() or self.name != self.name.lower():
@@ -36,9 +37,9 @@ QUANTITIES: tuple[Quantity, ...] = (
     Quantity("wavelength", "m", "λ", "nm", "centre (carrier) wavelength in vacuum"),
     Quantity("photon_energy", "J", "E_ph", "eV", "photon energy at the carrier wavelength"),
     Quantity("carrier_frequency", "Hz", "ν", "THz", "optical carrier frequency"),
-    Quantity("carrier_period", "s", "T_0", "fs", "duration of one optical cycle"),
+    Quantity("carrier_period", "s", "T_0", "fs", "duration of one optical cycle", secondary=True),
     Quantity("repetition_rate", "Hz", "f_rep", "MHz", "pulse repetition rate"),
-    Quantity("repetition_period", "s", "T_rep", "ns", "time between pulses"),
+    Quantity("repetition_period", "s", "T_rep", "ns", "time between pulses", secondary=True),
     Quantity("pulse_duration", "s", "τ", "fs", "intensity FWHM of the pulse"),
     Quantity("duty_cycle", "1", "D", "1", "pulse duration over repetition period", True),
     Quantity("cycles_per_pulse", "1", "N_cyc", "1", "optical cycles within the pulse FWHM", True),
@@ -46,13 +47,13 @@ QUANTITIES: tuple[Quantity, ...] = (
     Quantity("pulse_energy", "J", "E_p", "µJ", "energy of one pulse"),
     Quantity("peak_power", "W", "P_pk", "MW", "peak power of the temporal profile"),
     Quantity("spectral_bandwidth", "Hz", "Δν", "THz", "spectral FWHM in frequency"),
-    Quantity("spectral_bandwidth_wavelength", "m", "Δλ", "nm", "spectral FWHM in wavelength"),
-    Quantity("spectral_bandwidth_wavenumber", "1/m", "Δν̃", "1/cm", "spectral FWHM in wavenumber"),
+    Quantity("spectral_bandwidth_wavelength", "m", "Δλ", "nm", "spectral FWHM in wavelength", secondary=True),
+    Quantity("spectral_bandwidth_wavenumber", "1/m", "Δν̃", "1/cm", "spectral FWHM in wavenumber", secondary=True),
     Quantity("time_bandwidth_product", "1", "Δν·τ", "1", "product of the two FWHMs", True),
-    Quantity("autocorrelation_width", "s", "τ_ac", "fs", "FWHM of the intensity autocorrelation"),
+    Quantity("autocorrelation_width", "s", "τ_ac", "fs", "FWHM of the intensity autocorrelation", secondary=True),
     Quantity("beam_diameter", "m", "D", "mm", "1/e² intensity diameter"),
-    Quantity("beam_radius", "m", "w", "mm", "1/e² intensity radius"),
-    Quantity("beam_diameter_fwhm", "m", "D_fwhm", "mm", "FWHM intensity diameter"),
+    Quantity("beam_radius", "m", "w", "mm", "1/e² intensity radius", secondary=True),
+    Quantity("beam_diameter_fwhm", "m", "D_fwhm", "mm", "FWHM intensity diameter", secondary=True),
     Quantity("m2", "1", "M²", "1", "beam quality factor", True),
     Quantity("peak_intensity", "W/m^2", "I_pk", "W/cm^2", "on-axis intensity at the pulse peak"),
     Quantity("average_intensity", "W/m^2", "I_avg", "W/cm^2", "on-axis time-averaged intensity"),

@@ -1,0 +1,128 @@
+"""The command line end to end: exit codes, formats, colour, subcommands."""
+
+import io
+import json
+import os
+import subprocess
+import sys
+from pathlib import Path
+
+import pytest
+
+from speccheck.cli import run
+
+ROOT = Path(__file__).resolve().parent.parent
+EXAMPLES = ROOT / "example_specs"
+
+
+def cli(*argv, env=None):
+    out, err = io.StringIO(), io.StringIO()
+    code = run(list(argv), stdout=out, stderr=err)
+    return code, out.getvalue(), err.getvalue()
+
+
+def test_a_consistent_spec_exits_0(tmp_path):
+    code, out, _ = cli("check", str(EXAMPLES / "oscillator-consistent.yaml"))
+    assert code == 0
+    assert "0 errors" in out and "pulse_energy" in out
+
+
+def test_an_error_exits_1_and_prints_file_line_col(tmp_path):
+    path = EXAMPLES / "maker-sheet-one-wrong.yaml"
+    code, out, _ = cli("check", "--no-sheet", str(path))
+    assert code == 1
+    assert f"{path}:10:17: error [relation-conflict]" in out.replace("\n", " ")
+
+
+def test_a_missing_file_exits_2_and_the_others_are_still_checked(tmp_path):
+    code, out, err = cli("check", str(tmp_path / "nope.yaml"), str(EXAMPLES / "oscillator-consistent.yaml"))
+    assert code == 2
+    assert "cannot read" in err and "Ti:sapphire oscillator" in out
+
+
+def test_usage_errors_exit_2():
+    assert cli("check")[0] == 2
+    assert cli("frobnicate")[0] == 2
+    assert cli("explain", "no-such-rule")[0] == 2
+
+
+def test_strict_makes_warnings_fail(tmp_path):
+    spec = tmp_path / "w.yaml"
+    spec.write_text("spec_version: 1\nlaser:\n  wavelength: 800 nm\n  pulse_duration: 1.5 fs\n")
+    assert cli("check", str(spec))[0] == 0
+    assert cli("check", "--strict", str(spec))[0] == 1
+
+
+def test_json_has_the_contract_shape():
+    code, out, _ = cli("check", "--format", "json", str(EXAMPLES / "maker-sheet-one-wrong.yaml"))
+    doc = json.loads(out)
+    assert code == 1 and doc["version"] == 1
+    assert doc["counts"] == {"error": 1, "warning": 0, "note": 0}
+    (file,) = doc["files"]
+    (finding,) = file["findings"]
+    assert {"rule", "severity", "message", "line", "column", "quantities", "suspect"} <= set(finding)
+    assert finding["suspect"] == "laser.pulse_energy" and finding["line"] == 10
+    energy = file["sheet"]["laser"]["pulse_energy"]
+    assert energy["status"] == "conflict" and energy["unit"] == "J"
+    assert energy["value"] == pytest.approx(20e-9)
+    peak = file["sheet"]["laser"]["peak_power"]
+    assert peak["status"] == "stated" and peak["low"] == pytest.approx(59e6 * 0.95)
+
+
+def test_json_is_byte_identical_across_runs():
+    args = ("check", "--format", "json", str(EXAMPLES))
+    assert cli(*args)[1] == cli(*args)[1]
+
+
+def test_a_folder_is_searched_in_a_stable_order(tmp_path):
+    (tmp_path / "b").mkdir()
+    (tmp_path / ".hidden").mkdir()
+    for name in ("b/z.yaml", "a.yml", ".hidden/x.yaml"):
+        (tmp_path / name).write_text("spec_version: 1\nlaser: {}\n")
+    (tmp_path / "notes.txt").write_text("not a spec")
+    doc = json.loads(cli("check", "--format", "json", str(tmp_path))[1])
+    assert [Path(f["path"]).relative_to(tmp_path).as_posix() for f in doc["files"]] == ["a.yml", "b/z.yaml"]
+
+
+def test_output_file_is_written_and_inputs_are_untouched(tmp_path):
+    spec = EXAMPLES / "typos-and-units.yaml"
+    before = (spec.read_bytes(), spec.stat().st_mtime_ns)
+    target = tmp_path / "report.json"
+    code, out, _ = cli("check", "--format", "json", "-o", str(target), str(spec))
+    assert code == 1 and out == ""
+    assert json.loads(target.read_text())["counts"]["error"] == 4
+    assert (spec.read_bytes(), spec.stat().st_mtime_ns) == before
+    assert [p.name for p in tmp_path.iterdir()] == ["report.json"]  # no temporary left behind
+
+
+def test_plain_output_has_no_colour_codes_unless_asked():
+    path = str(EXAMPLES / "maker-sheet-one-wrong.yaml")
+    assert "\x1b[" not in cli("check", path)[1]
+    assert "\x1b[" in cli("check", "--color", path)[1]
+    assert "\x1b[" not in cli("check", "--color", "--no-color", path)[1]
+
+
+def test_no_color_environment_variable_is_honoured(monkeypatch):
+    monkeypatch.setenv("NO_COLOR", "1")
+    assert "\x1b[" not in cli("check", "--color", str(EXAMPLES / "maker-sheet-one-wrong.yaml"))[1]
+
+
+def test_rules_explain_relations_and_schema_subcommands():
+    code, out, _ = cli("rules")
+    assert code == 0 and "relation-conflict" in out and "below-transform-limit" in out
+    code, out, _ = cli("explain", "below-transform-limit")
+    assert code == 0 and "0.441" in out and "Fails:" in out and "Passes:" in out
+    code, out, _ = cli("relations")
+    assert code == 0 and "E_p = P_avg / f_rep" in out
+    code, out, _ = cli("schema")
+    assert code == 0 and json.loads(out)["$schema"].endswith("2020-12/schema")
+
+
+def test_python_dash_m_speccheck_works():
+    env = dict(os.environ, PYTHONPATH=str(ROOT))
+    proc = subprocess.run([sys.executable, "-m", "speccheck", "check", "--format", "json",
+                           str(EXAMPLES / "oscillator-consistent.yaml")],
+                          capture_output=True, text=True, env=env, timeout=120)
+    assert proc.returncode == 0, proc.stderr
+    assert json.loads(proc.stdout)["counts"]["error"] == 0
+    assert "Traceback" not in proc.stderr

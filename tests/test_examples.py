@@ -1,0 +1,34 @@
+"""The shipped example specs give exactly the findings they are written to show."""
+
+from pathlib import Path
+
+import pytest
+
+ROOT = Path(__file__).resolve().parent.parent / "example_specs"
+
+EXPECTED = {
+    "oscillator-consistent.yaml": [],
+    "amplifier-khz-consistent.yaml": [],
+    "maker-sheet-one-wrong.yaml": [("relation-conflict", 10, "laser.pulse_energy")],
+    "proposal-intensity-claim.yaml": [("relation-conflict", 18, "laser.peak_intensity")],
+    "typos-and-units.yaml": [("unknown-key", 8, None), ("wrong-dimension", 9, None),
+                             ("missing-unit", 10, None), ("duplicate-key", 12, None)],
+}
+
+
+def test_every_example_is_listed_here():
+    assert sorted(p.name for p in ROOT.glob("*.yaml")) == sorted(EXPECTED)
+
+
+@pytest.mark.parametrize("name", sorted(EXPECTED))
+def test_example_findings(checker, name):
+    result = checker.check_text((ROOT / name).read_bytes(), name)
+    got = [(f.rule, f.line, f.suspect) for f in result.findings if f.severity != "note"]
+    assert got == EXPECTED[name]
+
+
+def test_the_consistent_examples_derive_their_headline_numbers(checker):
+    result = checker.check_text((ROOT / "amplifier-khz-consistent.yaml").read_bytes(), "amp")
+    peak = result.sheet["laser"]["peak_power"]
+    # By hand: ≥ 0.9394 × 4.8 mJ / 35 fs = 1.29e11 W (the duration is an upper bound).
+    assert peak.status == "derived" and peak.low == pytest.approx(0.9394 * 4.8e-3 / 35e-15, rel=1e-3)

@@ -15,6 +15,7 @@ from .engine import Diagnosis, Network, State, diagnose, evaluate, implied, netw
 from .findings import Cell, FileResult, Finding
 from .limits import LIMITS
 from .loader import Document, Limits, load
+from .mistakes import likely_causes
 from .quantities import ALIASES, BY_NAME, CATEGORICAL, DEFAULTS, QUANTITIES
 from .relations import BY_ID, Context
 from .rules import rule
@@ -43,11 +44,11 @@ class _Report:
         self.findings: list[Finding] = []
 
     def add(self, rule_id: str, message: str, at=(), *, key: bool = False, line=None, column=None,
-            quantities=(), suspect=None, candidates=()) -> None:
+            quantities=(), suspect=None, candidates=(), cause=None) -> None:
         if line is None:
             line, column = self.doc.where(tuple(at), key=key)
         self.findings.append(Finding(rule_id, rule(rule_id).severity, message, self.path, line, column,
-                                     tuple(quantities), suspect, tuple(candidates)))
+                                     tuple(quantities), suspect, tuple(candidates), cause))
 
 
 class Checker:
@@ -256,6 +257,27 @@ class _BlockCheck:
         r = mine / implied_centre
         return f" The stated value is {_format_ratio(r)} the implied one."
 
+    def causes(self, var: int, state: State) -> list:
+        """Catalogue mistakes that explain the ratio of stated to implied (best first)."""
+        q = self.net.names[var]
+        s = self.stated[q]
+        value = s.typical if s.typical is not None else (s.low if s.low > 0 else s.high)
+        i_lo, i_hi = _exp(state.lo[var]), _exp(state.hi[var])
+        if not value or not math.isfinite(value) or i_lo is None or i_hi is None:
+            return []
+        s_lo = s.low if s.low > 0 else value
+        s_hi = s.high if math.isfinite(s.high) else value
+        return likely_causes(q, s_lo / i_hi, s_hi / i_lo, self.context)
+
+    @staticmethod
+    def cause_text(causes) -> str:
+        if not causes:
+            return ""
+        text = f" Likely cause: {causes[0][1]}"
+        if len(causes) > 1:
+            text += f" (or {causes[1][1]})"
+        return text + "."
+
     def report_conflicts(self) -> None:
         d: Diagnosis = self.diagnosis
         if d.consistent:
@@ -269,14 +291,15 @@ class _BlockCheck:
                 text, centre = self.implied_text(s, d.state, d.removed)
                 support = d.state.support(s)
                 via = d.state.via(s)
+                causes = self.causes(s, d.state)
                 self.report.add(
                     "relation-conflict",
                     f"{self.name}.{q} is stated as {self.stated[q].text}, but the rest of the spec "
                     f"({self.describe_support(support)}) implies {text}, via {self.describe_via(via)}."
-                    + self.ratio_text(q, centre),
+                    + self.ratio_text(q, centre) + self.cause_text(causes),
                     self.at(q), quantities=[self.dotted(q)] + [self.dotted(names[i]) for i in sorted(support)
                                                               if names[i] in self.stated],
-                    suspect=self.dotted(q))
+                    suspect=self.dotted(q), cause=causes[0][0].id if causes else None)
             return
         if not d.candidates:  # only defaults conflict: nothing the user stated can be blamed
             return
@@ -286,7 +309,9 @@ class _BlockCheck:
             rest = implied(self.net, self.log_stated, c)
             if rest.ok:
                 text, _ = self.implied_text(c, rest)
-                lines.append(f"{names[c]} (the rest implies {text})")
+                causes = self.causes(c, rest)
+                why = f"; perhaps {causes[0][1]}" if causes else ""
+                lines.append(f"{names[c]} (the rest implies {text}{why})")
             else:
                 lines.append(names[c])
         full = self.c_state_via(d)

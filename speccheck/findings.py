@@ -19,6 +19,7 @@ class Finding:
     quantities: tuple[str, ...] = ()
     suspect: str | None = None
     candidates: tuple[str, ...] = ()
+    cause: str | None = None  # id of the likely mistake (mistakes.py), when one matches
 
     def __post_init__(self) -> None:
         if self.severity not in SEVERITY_RANK:

@@ -26,6 +26,8 @@ def finding_dict(f: Finding) -> dict:
            "suspect": f.suspect}
     if f.candidates:
         out["candidates"] = list(f.candidates)
+    if f.cause:
+        out["cause"] = f.cause
     return out
 
 

@@ -42,11 +42,16 @@ class _Report:
         self.path = path
         self.doc = doc
         self.findings: list[Finding] = []
+        self.seen: set = set()
+        self.dedupe = False
 
     def add(self, rule_id: str, message: str, at=(), *, key: bool = False, line=None, column=None,
             quantities=(), suspect=None, candidates=(), cause=None) -> None:
         if line is None:
             line, column = self.doc.where(tuple(at), key=key)
+        if self.dedupe and (rule_id, line, column) in self.seen:
+            return
+        self.seen.add((rule_id, line, column))
         self.findings.append(Finding(rule_id, rule(rule_id).severity, message, self.path, line, column,
                                      tuple(quantities), suspect, tuple(candidates), cause))
 
@@ -74,8 +79,60 @@ class Checker:
             block = data.get("laser")
             if isinstance(block, dict):
                 sheet["laser"] = _BlockCheck(self, "laser", block, tolerance, report).run()
+                points = data.get("operating_points")
+                if isinstance(points, list):
+                    self._operating_points(block, points, tolerance, report, sheet)
         findings = tuple(sorted(report.findings, key=Finding.sort_key))
         return FileResult(path, findings, sheet, title)
+
+    def _operating_points(self, block: dict, points: list, tolerance: float, report: _Report,
+                          sheet: dict) -> None:
+        """Each point overrides the laser block and is checked as a column of its own."""
+        report.dedupe = True  # findings already reported for the laser block are not repeated
+        for i, point in enumerate(points):
+            if not isinstance(point, dict):
+                continue
+            raw_name = point.get("name")
+            name = raw_name if isinstance(raw_name, str) and raw_name else f"point {i + 1}"
+            if name in sheet:
+                report.add("duplicate-name", f"operating_points[{i}]: the name {name!r} is already used; "
+                           f"this point is shown as 'point {i + 1}'", ("operating_points", i, "name"))
+                name = f"point {i + 1}"
+            merged, paths = dict(block), {key: ("laser", key) for key in block}
+            for key, value in point.items():
+                if key != "name":
+                    merged[key] = value
+                    paths[key] = ("operating_points", i, key)
+            paths[""] = ("operating_points", i)
+            check = _BlockCheck(self, name, merged, tolerance, report, paths)
+            sheet[name] = check.run()
+            self._sheet_limits(name, block, point, i, check, report)
+        report.dedupe = False
+
+    def _sheet_limits(self, name: str, block: dict, point: dict, i: int, check: "_BlockCheck",
+                      report: _Report) -> None:
+        """A point may not claim more than the sheet's own minimum or maximum for a quantity."""
+        for key, value in point.items():
+            if key == "name" or key not in block or key not in _KEYS:
+                continue
+            try:
+                limit = self.values.parse(key, block[key], tolerance=0.0)
+                mine = self.values.parse(key, value, tolerance=0.0)
+            except ValueProblem:
+                continue  # reported where it was read
+            if limit.typical is not None and limit.low == limit.high:
+                continue  # a plain nominal value of the laser block: overriding it is the point
+            line = report.doc.where(("laser", key))[0]
+            if mine.low > limit.high:
+                side, bound = "above the sheet's maximum", limit.high
+            elif mine.high < limit.low:
+                side, bound = "below the sheet's minimum", limit.low
+            else:
+                continue
+            report.add("operating-point-beyond-limit",
+                       f"operating point {name!r}: {key} {mine.text} is {side} "
+                       f"{check.show(limit.quantity, bound, limit.unit)} (laser.{key}: {limit.text}, line {line})",
+                       ("operating_points", i, key), quantities=(f"{name}.{key}", f"laser.{key}"))
 
     def _tolerance(self, data: dict, report: _Report) -> float:
         defaults = data.get("defaults")
@@ -114,10 +171,12 @@ def _centre(low: float | None, high: float | None) -> float | None:
 class _BlockCheck:
     """Checks one block of quantities (the laser, later each stage)."""
 
-    def __init__(self, checker: Checker, name: str, block: dict, tolerance: float, report: _Report) -> None:
+    def __init__(self, checker: Checker, name: str, block: dict, tolerance: float, report: _Report,
+                 paths: dict | None = None) -> None:
         self.c = checker
-        self.name = name
+        self.name = name  # the column: "laser", or an operating point's name
         self.block = block
+        self.paths = paths or {key: (name, key) for key in block}  # spec key -> document path
         self.tolerance = tolerance
         self.report = report
         self.stated: dict[str, Stated] = {}
@@ -128,7 +187,8 @@ class _BlockCheck:
         return f"{self.name}.{quantity}"
 
     def at(self, quantity: str) -> tuple:
-        return (self.name, self.keys.get(quantity, quantity))
+        key = self.keys.get(quantity, quantity)
+        return self.paths.get(key, (self.name, key))
 
     def show(self, quantity: str, si: float, unit: str | None = None) -> str:
         return format_quantity(self.c.units, si, unit or self.unit_for(quantity, si))
@@ -170,7 +230,9 @@ class _BlockCheck:
         return min(quantities, key=lambda q: (distance.get(q, 99), self.report.doc.where(self.at(q))))
 
     def first_in_file(self, quantities) -> str:
-        return min(quantities, key=lambda q: self.report.doc.where(self.at(q)))
+        """The first in the file, preferring values stated in this column over inherited ones."""
+        return min(quantities, key=lambda q: (self.at(q)[0] != self.paths.get("", (self.name,))[0],
+                                              self.report.doc.where(self.at(q))))
 
     # ----------------------------------------------------------------- run
     def run(self) -> dict[str, Cell]:
@@ -201,13 +263,13 @@ class _BlockCheck:
             try:
                 stated = self.c.values.parse(key, raw, self.tolerance)
             except ValueProblem as p:
-                self.report.add(p.rule, f"{self.name}.{p.message}", (self.name, key),
+                self.report.add(p.rule, f"{self.name}.{p.message}", self.paths[key],
                                 quantities=(self.dotted(key),))
                 continue
             if stated.quantity in self.stated:
                 first = self.keys[stated.quantity]
                 self.report.add("duplicate-quantity", f"{self.name}.{key} states {stated.quantity} again "
-                                f"(already stated as {first}); the second is ignored", (self.name, key),
+                                f"(already stated as {first}); the second is ignored", self.paths[key],
                                 quantities=(self.dotted(stated.quantity),))
                 continue
             self.stated[stated.quantity] = stated
@@ -317,7 +379,7 @@ class _BlockCheck:
         full = self.c_state_via(d)
         self.report.add(
             "relation-conflict",
-            f"these stated values cannot all be true: {self.describe_support(d.conflict)}"
+            f"{self.name}: these stated values cannot all be true: {self.describe_support(d.conflict)}"
             f"{' (via ' + self.describe_via(full) + ')' if full else ''}. "
             f"Any one of them could be the wrong one: {_join(lines)}; state more numbers to tell them apart.",
             self.at(first), quantities=dotted, candidates=[self.dotted(names[c]) for c in d.candidates])
@@ -404,7 +466,7 @@ class _BlockCheck:
                     "assumed-shape",
                     f"{self.name}.{key} is not stated, so a {default} {key.replace('_', ' ')} is assumed "
                     f"for the derived {_join(relying)}; state {key} to make them exact.",
-                    (self.name,), key=True, quantities=[self.dotted(q) for q in relying])
+                    self.paths.get("", (self.name,)), key=True, quantities=[self.dotted(q) for q in relying])
 
 
 def _join(parts) -> str:

@@ -83,6 +83,14 @@ _RULES = (
          "spectral_bandwidth and its twins (…_wavelength, …_wavenumber) state the same quantity; "
          "state it once.", "spectral_bandwidth: 8 nm\nspectral_bandwidth_wavelength: 8 nm",
          "spectral_bandwidth: 8 nm"),
+    Rule("duplicate-name", "error", "two operating points (or stages) with the same name",
+         "Every column of the sheet needs its own name.", "operating_points:\n  - {name: a}\n  - {name: a}",
+         "operating_points:\n  - {name: a}\n  - {name: b}"),
+    Rule("operating-point-beyond-limit", "error", "an operating point beyond the sheet's own maximum or minimum",
+         "When the laser block of a maker's sheet gives a bound or a min/max range (average_power: <= 20 W), "
+         "every operating point must stay inside it.",
+         "laser:\n  average_power: <= 20 W\noperating_points:\n  - {name: 1 MHz, average_power: 25 W}",
+         "laser:\n  average_power: <= 20 W\noperating_points:\n  - {name: 1 MHz, average_power: 18 W}"),
     # ---- physics
     Rule("relation-conflict", "error", "stated values that physics says cannot all be true",
          "The stated values are checked against every relation of the relation table (energy = "

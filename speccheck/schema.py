@@ -37,15 +37,26 @@ def _validator():
     return Draft202012Validator(schema())
 
 
+def _resolve(node: dict) -> dict:
+    """Merge a node with the definitions it refers to (properties and items)."""
+    merged = dict(node)
+    props = dict(node.get("properties", {}))
+    while "$ref" in merged:
+        target = schema()["$defs"][merged.pop("$ref").rsplit("/", 1)[1]]
+        props.update(target.get("properties", {}))
+        merged = {**target, **merged}
+    merged["properties"] = props
+    return merged
+
+
 def _subschema(path) -> dict:
-    """The schema that applies at a document path (objects only; refs followed)."""
-    node = schema()
+    """The schema that applies at a document path (refs followed, list items entered)."""
+    node = _resolve(schema())
     for key in path:
-        while "$ref" in node:
-            node = schema()["$defs"][node["$ref"].rsplit("/", 1)[1]]
-        node = node.get("properties", {}).get(key, {})
-    while "$ref" in node:
-        node = schema()["$defs"][node["$ref"].rsplit("/", 1)[1]]
+        if isinstance(key, int):
+            node = _resolve(node.get("items", {}))
+        else:
+            node = _resolve(node["properties"].get(key, {}))
     return node
 
 
@@ -56,7 +67,7 @@ def validate(data) -> list[tuple[str, tuple, str, bool]]:
     problems = []
     for error in sorted(_validator().iter_errors(data), key=relevance):
         path = tuple(error.absolute_path)
-        if error.validator == "additionalProperties" and isinstance(error.instance, dict):
+        if error.validator in ("additionalProperties", "unevaluatedProperties") and isinstance(error.instance, dict):
             known = sorted(_subschema(path).get("properties", {}))
             for key in sorted(set(error.instance) - set(known), key=str):
                 where = ".".join(map(str, path)) or "the top level"
@@ -70,7 +81,7 @@ def validate(data) -> list[tuple[str, tuple, str, bool]]:
 
 def _message(error, path) -> str:
     where = ".".join(map(str, path)) or "the document"
-    if error.validator == "anyOf" and error.schema is schema()["$defs"]["quantity"]:
+    if error.validator == "anyOf" and error.schema == schema()["$defs"]["quantity"]:
         return (f"{where}: expected a value like '25 nJ', '25 nJ ± 1 nJ', '>= 20 W' or "
                 f"{{min: …, typical: …, max: …}}, got {_short(error.instance)}")
     if error.validator == "const":

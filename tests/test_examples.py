@@ -11,6 +11,8 @@ EXPECTED = {
     "amplifier-khz-consistent.yaml": [],
     "maker-sheet-one-wrong.yaml": [("relation-conflict", 10, "laser.pulse_energy")],
     "proposal-intensity-claim.yaml": [("relation-conflict", 18, "laser.peak_intensity")],
+    "maker-sheet-operating-points.yaml": [("relation-conflict", 18, None),
+                                          ("operating-point-beyond-limit", 27, None)],
     "typos-and-units.yaml": [("unknown-key", 8, None), ("wrong-dimension", 9, None),
                              ("missing-unit", 10, None), ("duplicate-key", 12, None)],
 }

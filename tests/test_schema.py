@@ -21,7 +21,7 @@ def test_the_installed_schema_is_the_published_file():
 
 
 def test_the_block_keys_are_exactly_the_quantity_table():
-    block = set(schema()["$defs"]["block"]["properties"])
+    block = set(schema()["$defs"]["quantities"]["properties"])
     assert block == {q.name for q in QUANTITIES} | set(ALIASES) | set(CATEGORICAL)
 
 

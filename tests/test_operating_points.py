@@ -1,0 +1,69 @@
+"""Makers' sheets with operating points: each point is a column checked on its own."""
+
+import pytest
+
+from conftest import cell, rules_of
+
+SHEET = """
+laser:
+  wavelength: 1030 nm
+  average_power: <= 20 W
+  pulse_duration: 300 fs
+  pulse_shape: sech2
+operating_points:
+  - name: 100 kHz
+    repetition_rate: 100 kHz
+    pulse_energy: ">= 150 µJ"
+  - name: 1 MHz
+    repetition_rate: 1 MHz
+    pulse_energy: 20 µJ
+"""
+
+
+def test_each_point_becomes_a_column_of_the_sheet(check):
+    result = check(SHEET)
+    assert list(result.sheet) == ["laser", "100 kHz", "1 MHz"]
+    assert rules_of(result) == []
+    # By hand: 20 µJ × 1 MHz = 20 W; 0.8814 × 20 µJ / 300 fs = 58.8 MW.
+    assert cell(result, "average_power", "1 MHz").status == "stated"  # inherited bound
+    assert cell(result, "peak_power", "1 MHz").value == pytest.approx(0.8814 * 20e-6 / 300e-15, rel=1e-3)
+    # The bound works in a point: ≥ 150 µJ at 100 kHz is ≥ 15 W, inside the 20 W maximum.
+    assert cell(result, "pulse_energy", "100 kHz").low == pytest.approx(150e-6)
+
+
+def test_an_energy_the_rate_cannot_reach_is_reported_in_its_column(check):
+    result = check(SHEET.replace('">= 150 µJ"', "300 µJ"))
+    (finding,) = result.findings
+    assert finding.rule == "relation-conflict" and finding.message.startswith("100 kHz:")
+    assert finding.line == 9  # inside the point, not at the inherited laser line
+    assert cell(result, "pulse_energy", "100 kHz").status == "conflict"
+
+
+def test_a_point_above_the_sheets_own_maximum(check):
+    result = check(SHEET + "  - name: 2 MHz\n    repetition_rate: 2 MHz\n    average_power: 25 W\n")
+    assert ("operating-point-beyond-limit", 16) in rules_of(result)
+    (finding,) = [f for f in result.findings if f.rule == "operating-point-beyond-limit"]
+    assert "20 W" in finding.message and "2 MHz" in finding.message
+
+
+def test_overriding_a_plain_nominal_value_is_not_a_limit(check):
+    result = check("laser:\n  repetition_rate: 1 MHz\n  average_power: 20 W\n"
+                   "operating_points:\n  - {name: low, repetition_rate: 100 kHz, average_power: 10 W}\n")
+    assert rules_of(result) == []
+
+
+def test_a_mistake_in_the_laser_block_is_reported_once_not_per_point(check):
+    result = check(SHEET.replace("pulse_duration: 300 fs", "pulse_duration: 300"))
+    assert rules_of(result) == [("missing-unit", 5)]
+
+
+def test_duplicate_point_names(check):
+    result = check(SHEET.replace("name: 1 MHz", "name: 100 kHz"))
+    assert ("duplicate-name", 11) in rules_of(result)
+    assert list(result.sheet) == ["laser", "100 kHz", "point 2"]
+
+
+def test_an_unknown_key_in_a_point_is_suggested(check):
+    result = check(SHEET.replace("    pulse_energy: 20 µJ", "    pulse_enegry: 20 µJ"))
+    (finding,) = result.findings
+    assert finding.rule == "unknown-key" and "pulse_energy" in finding.message and finding.line == 13

@@ -25,7 +25,11 @@ def _parser() -> argparse.ArgumentParser:
     sub = p.add_subparsers(dest="command", metavar="COMMAND")
     c = sub.add_parser("check", help="check spec files or folders of them")
     c.add_argument("paths", nargs="+", metavar="PATH", help="a spec file, or a folder searched for *.yaml / *.yml")
-    c.add_argument("--format", default="human", choices=["human", "json"], help="output format (default human)")
+    c.add_argument("--format", default="human", choices=["human", "json", "review"],
+                   help="output format (default human)")
+    c.add_argument("--review", action="store_true",
+                   help="a short review: consistent claims, impossible ones, numbers implied but not stated "
+                   "(same as --format review)")
     c.add_argument("-o", "--output", metavar="FILE", help="write the report to FILE instead of standard output")
     c.add_argument("--strict", action="store_true", help="exit 1 on warnings too")
     c.add_argument("--no-color", action="store_true", help="never colour the output (also: NO_COLOR=1)")
@@ -84,7 +88,7 @@ def _check(args, stdout, stderr) -> int:
     to_terminal = args.output is None and hasattr(stdout, "isatty") and stdout.isatty()
     color = (args.color or to_terminal) and not args.no_color and not os.environ.get("NO_COLOR")
     options = OutputOptions(units=units, color=color, show_sheet=not args.no_sheet)
-    write = writer(args.format)
+    write = writer("review" if args.review else args.format)
     if args.output:
         _write_atomically(Path(args.output), lambda out: write(results, out, options))
     else:

@@ -126,3 +126,17 @@ def test_python_dash_m_speccheck_works():
     assert proc.returncode == 0, proc.stderr
     assert json.loads(proc.stdout)["counts"]["error"] == 0
     assert "Traceback" not in proc.stderr
+
+
+def test_review_says_what_is_consistent_impossible_and_implied():
+    code, out, _ = cli("check", "--review", str(EXAMPLES / "maker-sheet-one-wrong.yaml"))
+    text = " ".join(out.split())
+    assert code == 1
+    assert "Consistent: wavelength 1030 nm, repetition_rate 1 MHz" in text  # all but the suspect
+    assert "pulse_energy 20 nJ," not in text.split("Impossible")[0]
+    assert "Impossible or contradictory: line 10:" in text
+    code, out, _ = cli("check", "--review", str(EXAMPLES / "oscillator-consistent.yaml"))
+    text = " ".join(out.split())
+    # By hand: 2 × 530 kW / (π (0.1 cm)²) = 3.37e7 W/cm².
+    assert "the peak intensity this spec implies is 3.37" in text
+    assert "No claim contradicts another." in text

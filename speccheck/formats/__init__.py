@@ -12,6 +12,7 @@ from dataclasses import dataclass
 FORMATS: dict[str, str] = {
     "human": "speccheck.formats.human",
     "json": "speccheck.formats.json_format",
+    "review": "speccheck.formats.review",
 }
 
 

@@ -16,12 +16,12 @@ from .findings import Cell, FileResult, Finding
 from .limits import LIMITS
 from .loader import Document, Limits, load
 from .mistakes import likely_causes
-from .quantities import ALIASES, BY_NAME, CATEGORICAL, DEFAULTS, QUANTITIES
+from .quantities import ALIASES, BY_NAME, CATEGORICAL, DEFAULTS, MEASURED, QUANTITIES
 from .relations import BY_ID, Context
 from .rules import rule
 from .schema import validate
 from .shapes import BEAM_PROFILES, DEFAULT_PROFILE, DEFAULT_SHAPE, PULSE_SHAPES
-from .units import UnitSystem, choose_unit, format_number, format_quantity
+from .units import UnitError, UnitSystem, choose_unit, format_number, format_quantity
 from .values import Stated, ValueParser, ValueProblem, parse_tolerance
 
 NAMES = tuple(q.name for q in QUANTITIES)
@@ -57,10 +57,15 @@ class _Report:
 
 
 class Checker:
-    def __init__(self, units: UnitSystem, options: Options = Options()) -> None:
+    """Checks documents.  ``read(name, spec_path) -> bytes`` opens measured data files named
+    in a spec (the command line supplies one that reads next to the spec); without it, data
+    files are reported as not read."""
+
+    def __init__(self, units: UnitSystem, options: Options = Options(), read=None) -> None:
         self.units = units
         self.options = options
         self.values = ValueParser(units)
+        self.read = read
 
     def check_text(self, text: str | bytes, path: str) -> FileResult:
         doc = load(text, self.options.limits)
@@ -181,6 +186,7 @@ class _BlockCheck:
         self.report = report
         self.stated: dict[str, Stated] = {}
         self.keys: dict[str, str] = {}  # quantity -> spec key it was stated under
+        self.measured: set[str] = set()  # quantities taken from measured data files (never suspected)
 
     # ------------------------------------------------------------- helpers
     def dotted(self, quantity: str) -> str:
@@ -248,7 +254,7 @@ class _BlockCheck:
             if q not in self.stated:
                 self.log_stated[idx[q]] = (math.log(value), math.log(value))
                 fixed.add(idx[q])
-        self.fixed = frozenset(fixed)
+        self.fixed = frozenset(fixed | {idx[q] for q in self.measured})
         self.diagnosis = diagnose(self.net, self.log_stated, self.fixed)
         self.report_conflicts()
         cells = self.cells()
@@ -257,7 +263,10 @@ class _BlockCheck:
         return cells
 
     def parse_values(self) -> None:
+        measured = []
         for key, raw in self.block.items():
+            if key in MEASURED and isinstance(raw, dict):
+                measured.append((key, raw))
             if key in CATEGORICAL or key not in _KEYS:
                 continue
             try:
@@ -274,6 +283,71 @@ class _BlockCheck:
                 continue
             self.stated[stated.quantity] = stated
             self.keys[stated.quantity] = key
+        for key, raw in measured:
+            self.measure(key, raw)
+
+    # ------------------------------------------------------- measured data
+    def measure(self, key: str, raw: dict) -> None:
+        """Read a measured file; its widths become stated values or are compared with them."""
+        from . import measured
+
+        at = self.paths[key]
+        name = raw.get("file")
+        unit_key, dimension = MEASURED[key]
+        unit_text = raw.get(unit_key, "nm" if dimension == "m" else "fs")
+        if not isinstance(name, str):
+            return  # the schema reports it
+        try:
+            unit = self.c.units.parse(str(unit_text))
+            if unit.dimension != dimension:
+                raise measured.DataProblem(f"{unit_key} {unit_text!r} is not a unit of "
+                                           f"{'length' if dimension == 'm' else 'time'}")
+            if self.c.read is None:
+                raise measured.DataProblem("data files are not read in this mode")
+            try:
+                data = self.c.read(name, self.report.path)
+            except (OSError, ValueError) as exc:
+                raise measured.DataProblem(f"cannot read it: {getattr(exc, 'strerror', None) or exc}") from None
+            x, y = measured.read_table(data.decode("utf-8", errors="replace"))
+            x = x * unit.factor
+            if key == "spectrum":
+                result = measured.analyse_spectrum(x, y, self.c.units.constants.c)
+                self.use_measured("spectral_bandwidth", "spectral_bandwidth_wavelength",
+                                  result.fwhm_wavelength, unit.text, name, key, at)
+                self.use_measured("spectral_bandwidth", "spectral_bandwidth",
+                                  result.fwhm_frequency, "THz", name, key, at, compare_only=True)
+                self.use_measured("wavelength", "wavelength", result.centre_wavelength, unit.text, name, key,
+                                  at, compare=False)
+                self.use_measured("transform_limited_duration", "transform_limited_duration",
+                                  result.transform_limited_duration, "fs", name, key, at)
+            else:
+                width = measured.analyse_autocorrelation(x, y)
+                self.use_measured("autocorrelation_width", "autocorrelation_width", width, unit.text, name,
+                                  key, at)
+        except (measured.DataProblem, UnitError) as exc:
+            self.report.add("measured-data", f"{self.name}.{key}: {name}: {exc}", at,
+                            quantities=(self.dotted(key),))
+
+    def use_measured(self, key: str, quantity: str, si: float, unit: str, name: str, source_key: str,
+                     at, compare: bool = True, compare_only: bool = False) -> None:
+        tol = self.tolerance
+        text = f"{format_quantity(self.c.units, si, choose_unit(self.c.units, si, unit))} (from {name})"
+        stated = self.stated.get(quantity)
+        if stated is None:
+            if compare_only or any(q in self.stated for q in ALIASES.get(key, {}).values()):
+                return
+            self.stated[quantity] = Stated(quantity, si * (1 - tol), si * (1 + tol), si, unit, text)
+            self.keys[quantity] = source_key
+            self.measured.add(quantity)
+            return
+        if compare and (si * (1 + tol) < stated.low or si * (1 - tol) > stated.high):
+            self.report.add(
+                "measured-mismatch",
+                f"{self.name}.{self.keys[quantity]} is stated as {stated.text}, but {name} measures "
+                f"{format_quantity(self.c.units, si, choose_unit(self.c.units, si, stated.unit))} "
+                f"(FWHM); the stated value is {_format_ratio(stated.typical / si) if stated.typical else 'outside'} "
+                "the measured one.",
+                self.at(quantity), quantities=(self.dotted(quantity), self.dotted(source_key)))
 
     def categorical(self, key: str, table: dict, default: str) -> str:
         value = self.block.get(key)
@@ -282,7 +356,8 @@ class _BlockCheck:
     # ----------------------------------------------------------- conflicts
     def describe_support(self, support, leave_out=()) -> str:
         names = [self.net.names[i] for i in sorted(support, key=lambda i: self.net.names[i])]
-        parts = [f"{self.keys[q]} {self.stated[q].text}" for q in names if q in self.stated and q not in leave_out]
+        parts = [f"{q if self.keys[q] in MEASURED else self.keys[q]} {self.stated[q].text}"
+                 for q in names if q in self.stated and q not in leave_out]
         parts += [f"{q} {DEFAULTS[q]:g} (default)" for q in names if q not in self.stated and q in DEFAULTS]
         return _join(parts)
 
@@ -297,10 +372,11 @@ class _BlockCheck:
 
     def nominal(self, exclude=()) -> dict:
         """Point values of every quantity computable from the stated typical values."""
-        return evaluate(self.net, {
-            self.net.index[q]: math.log(s.typical) for q, s in self.stated.items()
-            if s.typical is not None and self.net.index[q] not in exclude
-        } | {i: self.log_stated[i][0] for i in self.fixed})
+        idx = self.net.index
+        known = {idx[q]: math.log(s.typical) for q, s in self.stated.items()
+                 if s.typical is not None and idx[q] not in exclude}
+        known |= {idx[q]: math.log(v) for q, v in DEFAULTS.items() if q not in self.stated}
+        return evaluate(self.net, known)
 
     def implied_text(self, var: int, state: State, exclude=()) -> tuple[str, float | None]:
         q = self.net.names[var]
@@ -437,7 +513,7 @@ class _BlockCheck:
                 continue
             q = limit.quantity
             i = self.net.index[q]
-            support = self.diagnosis.state.support(i) - self.fixed
+            support = self.diagnosis.state.support(i) - {self.net.index[d] for d in DEFAULTS}
             where = q if q in self.stated else self.nearest([self.net.names[k] for k in support] or [q], q)
             origin = "" if q in self.stated else f" (from {self.describe_support(support)})"
             bound = limit.bound(self.context)

@@ -59,6 +59,18 @@ def _spec_files(paths: list[str]) -> list[tuple[str, Path | None]]:
     return out
 
 
+def read_beside(name: str, spec: str, max_bytes: int = 50 * 1024 * 1024) -> bytes:
+    """Read a data file named in a spec: a relative path inside the spec's folder, size-bounded."""
+    folder = Path(spec).resolve().parent
+    target = (folder / name).resolve()
+    if Path(name).is_absolute() or not target.is_relative_to(folder):
+        raise ValueError("data files must be given relative to the spec, inside its folder")
+    if target.stat().st_size > max_bytes:
+        raise ValueError(f"larger than {max_bytes} bytes")
+    with open(target, "rb") as f:
+        return f.read()
+
+
 def _read_failure(name: str, exc: OSError) -> FileResult:
     reason = exc.strerror or type(exc).__name__
     if isinstance(exc, IsADirectoryError):
@@ -73,7 +85,7 @@ def _check(args, stdout, stderr) -> int:
     from .units import UnitSystem
 
     units = UnitSystem()
-    checker = Checker(units)
+    checker = Checker(units, read=read_beside)
     results: list[FileResult] = []
     io_failure = False
     for name, path in _spec_files(args.paths):

@@ -53,6 +53,11 @@ LIMITS: tuple[Limit, ...] = (
           "1 fs", "shorter than the ultrafast range speccheck is made for", "scope of speccheck"),
     Limit("outside-ultrafast-range", "pulse_duration", "max", lambda x: 100e-12,
           "100 ps", "longer than the ultrafast range speccheck is made for", "scope of speccheck"),
+    Limit("below-transform-limit", "transform_limit_ratio", "min", lambda x: 1.0,
+          "1 (the transform limit of the measured spectrum)",
+          "the pulse is shorter than its measured spectrum allows", "Fourier transform limit"),
+    Limit("strongly-chirped", "transform_limit_ratio", "max", lambda x: 2.0,
+          "2", "the pulse is more than twice its transform limit: strongly chirped", "common practice"),
     Limit("m2-below-one", "m2", "min", lambda x: 1.0,
           "1", "no real beam has M² below 1", "ISO 11146; M² = 1 is the ideal Gaussian beam"),
 )

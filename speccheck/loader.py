@@ -166,11 +166,12 @@ class _Builder:
 def load(text: str | bytes, limits: Limits = Limits()) -> Document:
     """Parse spec text into a ``Document``; problems are collected, never raised."""
     doc = Document()
+    size = len(text) if isinstance(text, bytes) else len(text.encode("utf-8", "surrogatepass"))
+    if size > limits.max_bytes:  # str input is bounded by its UTF-8 size too
+        doc.problems.append(Problem("input-limit", f"the file is {size} bytes, more than the limit "
+                                    f"of {limits.max_bytes}", 1, 1))
+        return doc
     if isinstance(text, bytes):
-        if len(text) > limits.max_bytes:
-            doc.problems.append(Problem("input-limit", f"the file is {len(text)} bytes, more than the limit "
-                                        f"of {limits.max_bytes}", 1, 1))
-            return doc
         try:
             text = text.decode("utf-8-sig")
         except UnicodeDecodeError as exc:
@@ -189,6 +190,12 @@ def load(text: str | bytes, limits: Limits = Limits()) -> Document:
         return doc
     except RecursionError:
         doc.problems.append(Problem("input-limit", "the document is nested too deeply to read", 1, 1))
+        return doc
+    except UnicodeEncodeError as exc:  # str input with a lone surrogate: not encodable text
+        line = text.count("\n", 0, exc.start) + 1
+        column = exc.start - (text.rfind("\n", 0, exc.start) + 1) + 1
+        doc.problems.append(Problem("yaml-syntax", "the text contains a character that is not valid Unicode "
+                                    f"(U+{ord(text[exc.start]):04X})", line, column))
         return doc
     if root is None:
         doc.values[()] = (1, 1)

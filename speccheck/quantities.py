@@ -60,6 +60,10 @@ QUANTITIES: tuple[Quantity, ...] = (
     Quantity("peak_fluence", "J/m^2", "F_pk", "J/cm^2", "on-axis energy per area of one pulse"),
     Quantity("peak_field", "V/m", "E_pk", "V/m", "peak electric field amplitude in the medium"),
     Quantity("refractive_index", "1", "n", "1", "refractive index of the medium (default 1)", True),
+    Quantity("transform_limited_duration", "s", "τ_TL", "fs",
+             "shortest duration the spectrum allows (flat spectral phase)"),
+    Quantity("transform_limit_ratio", "1", "τ/τ_TL", "1", "pulse duration over its transform limit", True,
+             secondary=True),
 )
 
 BY_NAME: dict[str, Quantity] = {q.name: q for q in QUANTITIES}
@@ -75,6 +79,10 @@ ALIASES: dict[str, dict[str, str]] = {
 
 # Categorical keys of a block and the values each accepts (see shapes.py).
 CATEGORICAL = ("pulse_shape", "beam_profile")
+
+# Keys that point to a measured data file next to the spec (see measured.py):
+# key -> (the axis-unit key, the unit's dimension key in units.DIMENSION_NAMES).
+MEASURED = {"spectrum": ("wavelength_unit", "m"), "autocorrelation": ("delay_unit", "s")}
 
 # Values a block assumes when it states nothing: quantity -> value in SI.
 DEFAULTS: dict[str, float] = {"refractive_index": 1.0}

@@ -191,6 +191,13 @@ RELATIONS: tuple[Relation, ...] = (
         lambda x: 2.0 / (x.c * x.eps0),
         "intensity of a plane wave I = ½ c ε0 n E²",
     ),
+    Relation(
+        "transform-limit-ratio",
+        "τ/τ_TL = τ / τ_TL",
+        (("transform_limit_ratio", 1), ("pulse_duration", -1), ("transform_limited_duration", 1)),
+        _one,
+        "definition (τ_TL from a measured spectrum, see measured.py)",
+    ),
 )
 
 BY_ID: dict[str, Relation] = {r.id: r for r in RELATIONS}

@@ -91,6 +91,15 @@ _RULES = (
          "every operating point must stay inside it.",
          "laser:\n  average_power: <= 20 W\noperating_points:\n  - {name: 1 MHz, average_power: 25 W}",
          "laser:\n  average_power: <= 20 W\noperating_points:\n  - {name: 1 MHz, average_power: 18 W}"),
+    Rule("measured-data", "error", "a measured data file that cannot be used",
+         "A spectrum or autocorrelation file must exist next to the spec (a relative path inside its "
+         "folder), hold at least 8 rows of two finite numbers, have a strictly monotonic first column "
+         "(positive wavelengths) and one clear peak that falls to half its height on both sides.",
+         "spectrum: {file: missing.csv}", "spectrum: {file: spectrum.csv, wavelength_unit: nm}"),
+    Rule("measured-mismatch", "error", "a stated value that its own measured data contradicts",
+         "The FWHM bandwidth of a measured spectrum and the FWHM of a measured autocorrelation are "
+         "compared with the stated spectral_bandwidth and autocorrelation_width, with the tolerance.",
+         "spectral_bandwidth: 8 nm   # spectrum.csv has 12 nm", "spectral_bandwidth: 12 nm"),
     # ---- physics
     Rule("relation-conflict", "error", "stated values that physics says cannot all be true",
          "The stated values are checked against every relation of the relation table (energy = "

@@ -85,6 +85,8 @@ def screen_unit_text(text: str) -> None:
         is_one_over = m.group() == "1" and text[m.end() :].lstrip().startswith("/")
         if not (is_exponent or is_one_over):
             raise UnitError(f"unexpected number {m.group()!r} inside the unit")
+        if is_exponent and text[m.end() :].lstrip().startswith("^"):  # W^2^2^2...: pint would compute a tower
+            raise UnitError("an exponent may not itself be raised to a power")
 
 
 class UnitSystem:
@@ -189,6 +191,8 @@ def choose_unit(units: UnitSystem, si_value: float, display_unit: str) -> str:
             break
     if base not in _PREFIXABLE:
         return display_unit
+    if 0.1 <= abs(si_value / units.factor(display_unit)) < 1e4:
+        return display_unit  # the unit people chose reads well: keep it (1030 nm, not 1.03 µm)
     in_base = si_value / units.factor(base)
     best = base
     for scale, p in _PREFIXES:

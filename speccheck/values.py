@@ -56,7 +56,7 @@ def parse_tolerance(raw, default: float = 0.05) -> float:
     if isinstance(raw, bool) or raw is None:
         raise ValueProblem("invalid-value", f"tolerance must be a percentage like '5%', got {raw!r}")
     if isinstance(raw, (int, float)):
-        value = float(raw)
+        value = _to_float(raw, "tolerance")
     else:
         text = str(raw).strip().translate(_SPACES)
         match = re.fullmatch(rf"({_NUMBER})\s*(%?)", text)
@@ -80,7 +80,7 @@ class ValueParser:
         if isinstance(raw, bool) or raw is None:
             raise ValueProblem("invalid-value", f"{key}: expected a number with a unit, got {_show(raw)}")
         if isinstance(raw, (int, float)):
-            return self._from_number(key, float(raw), None, tolerance, str(raw))
+            return self._from_number(key, _to_float(raw, f"{key}:"), None, tolerance, str(raw))
         text = str(raw)
         if len(text) > MAX_VALUE_LENGTH:
             raise ValueProblem("invalid-value", f"{key}: value is longer than {MAX_VALUE_LENGTH} characters")
@@ -209,6 +209,15 @@ def _example(names: dict[str, str]) -> str:
 def _positive(key: str, si: float, text: str) -> None:
     if si <= 0.0:
         raise ValueProblem("non-positive-value", f"{key}: {text.strip()!r} must be positive")
+
+
+def _to_float(raw: int | float, what: str) -> float:
+    try:
+        return float(raw)
+    except OverflowError:  # a YAML integer of thousands of digits
+        digits = str(raw)
+        raise ValueProblem("non-finite-value", f"{what} {digits[:20]}… ({len(digits)} digits) is too "
+                           "large for a number") from None
 
 
 def _show(raw) -> str:

@@ -13,6 +13,7 @@ EXPECTED = {
     "proposal-intensity-claim.yaml": [("relation-conflict", 18, "laser.peak_intensity")],
     "maker-sheet-operating-points.yaml": [("relation-conflict", 18, None),
                                           ("operating-point-beyond-limit", 27, None)],
+    "fibre-oscillator-measured.yaml": [("relation-conflict", 12, "laser.pulse_duration")],
     "typos-and-units.yaml": [("unknown-key", 8, None), ("wrong-dimension", 9, None),
                              ("missing-unit", 10, None), ("duplicate-key", 12, None)],
 }
@@ -22,9 +23,17 @@ def test_every_example_is_listed_here():
     assert sorted(p.name for p in ROOT.glob("*.yaml")) == sorted(EXPECTED)
 
 
+@pytest.fixture(scope="module")
+def reading_checker(units):
+    from speccheck.check import Checker
+    from speccheck.cli import read_beside
+
+    return Checker(units, read=read_beside)
+
+
 @pytest.mark.parametrize("name", sorted(EXPECTED))
-def test_example_findings(checker, name):
-    result = checker.check_text((ROOT / name).read_bytes(), name)
+def test_example_findings(reading_checker, name):
+    result = reading_checker.check_text((ROOT / name).read_bytes(), str(ROOT / name))
     got = [(f.rule, f.line, f.suspect) for f in result.findings if f.severity != "note"]
     assert got == EXPECTED[name]
 

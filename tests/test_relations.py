@@ -187,7 +187,8 @@ def test_every_relation_is_exercised_by_a_test_in_this_module():
                  "time-bandwidth-product": "transform_limit", "autocorrelation-width": "autocorrelation_width",
                  "beam-radius": "beam_radius", "beam-fwhm": "beam_diameter_fwhm",
                  "peak-intensity": "peak_intensity", "average-intensity": "average_intensity",
-                 "peak-fluence": "peak_fluence", "peak-field": "peak_field"}
+                 "peak-fluence": "peak_fluence", "peak-field": "peak_field",
+                 "transform-limit-ratio": "transform_limit_ratio"}
     assert {r.id for r in RELATIONS} == set(exercised)
     for needle in exercised.values():
         assert needle in text
@@ -197,3 +198,9 @@ def test_average_intensity(check):
     # By hand: 2 × 1 W / (π (1 mm)²) = 6.366e5 W/m².
     assert derived(check, "average_power: 1 W\nbeam_radius: 1 mm", "average_intensity") == pytest.approx(
         2 / (math.pi * 1e-6))
+
+
+def test_transform_limit_ratio(check):
+    # By hand: 100 fs / 80 fs = 1.25.
+    assert derived(check, "pulse_duration: 100 fs\ntransform_limited_duration: 80 fs",
+                   "transform_limit_ratio") == pytest.approx(1.25)

@@ -87,6 +87,10 @@ class Checker:
                 points = data.get("operating_points")
                 if isinstance(points, list):
                     self._operating_points(block, points, tolerance, report, sheet)
+                if isinstance(data.get("path"), list):
+                    from .chain import check_path
+
+                    check_path(self, data, tolerance, report, sheet)
         findings = tuple(sorted(report.findings, key=Finding.sort_key))
         return FileResult(path, findings, sheet, title)
 
@@ -177,7 +181,7 @@ class _BlockCheck:
     """Checks one block of quantities (the laser, later each stage)."""
 
     def __init__(self, checker: Checker, name: str, block: dict, tolerance: float, report: _Report,
-                 paths: dict | None = None) -> None:
+                 paths: dict | None = None, inherited: dict | None = None, notes: bool = True) -> None:
         self.c = checker
         self.name = name  # the column: "laser", or an operating point's name
         self.block = block
@@ -187,6 +191,9 @@ class _BlockCheck:
         self.stated: dict[str, Stated] = {}
         self.keys: dict[str, str] = {}  # quantity -> spec key it was stated under
         self.measured: set[str] = set()  # quantities taken from measured data files (never suspected)
+        # values carried from the column before (a beam path): never suspected, replaced by a measurement
+        self.inherited: dict[str, Stated] = dict(inherited or {})
+        self.notes = notes
 
     # ------------------------------------------------------------- helpers
     def dotted(self, quantity: str) -> str:
@@ -201,8 +208,9 @@ class _BlockCheck:
 
     def unit_for(self, quantity: str, si: float) -> str:
         """The user's unit where stated, else the display unit; a prefix that fits the number."""
-        base = self.stated[quantity].unit if quantity in self.stated else BY_NAME[quantity].display_unit
-        return choose_unit(self.c.units, si, base)
+        if quantity in self.stated and quantity not in self.carried:
+            return choose_unit(self.c.units, si, self.stated[quantity].unit, keep=True)
+        return choose_unit(self.c.units, si, BY_NAME[quantity].display_unit)
 
     def show_interval(self, quantity: str, low: float | None, high: float | None,
                       value: float | None = None) -> str:
@@ -259,10 +267,16 @@ class _BlockCheck:
         self.report_conflicts()
         cells = self.cells()
         self.report_limits(cells)
-        self.report_assumptions(cells)
+        if self.notes:
+            self.report_assumptions(cells)
         return cells
 
     def parse_values(self) -> None:
+        for q, stated in self.inherited.items():
+            self.stated[q] = stated
+            self.keys[q] = q
+            self.measured.add(q)
+        self.carried = set(self.inherited)  # inherited and not replaced by a measurement
         measured = []
         for key, raw in self.block.items():
             if key in MEASURED and isinstance(raw, dict):
@@ -275,6 +289,9 @@ class _BlockCheck:
                 self.report.add(p.rule, f"{self.name}.{p.message}", self.paths[key],
                                 quantities=(self.dotted(key),))
                 continue
+            if stated.quantity in self.carried:
+                self.compare_with_inherited(key, stated)
+                continue
             if stated.quantity in self.stated:
                 first = self.keys[stated.quantity]
                 self.report.add("duplicate-quantity", f"{self.name}.{key} states {stated.quantity} again "
@@ -285,6 +302,25 @@ class _BlockCheck:
             self.keys[stated.quantity] = key
         for key, raw in measured:
             self.measure(key, raw)
+
+    def compare_with_inherited(self, key: str, stated: Stated) -> None:
+        """A value measured at a stage that agrees with the path replaces (narrows) it; one that
+        disagrees is reported and the path's value kept, so the columns after it stay consistent."""
+        model = self.inherited[stated.quantity]
+        if stated.low > model.high or stated.high < model.low:
+            ratio = (stated.typical / model.typical) if stated.typical and model.typical else None
+            self.report.add(
+                "measured-mismatch",
+                f"{self.name}: measured {key} {stated.text}, but the laser and the stages before it give "
+                f"{self.show_interval(stated.quantity, model.low or None, model.high if math.isfinite(model.high) else None, model.typical)}"
+                + (f"; the measurement is {_format_ratio(ratio)} that." if ratio else ".")
+                + " The column goes on with the path's value.",
+                self.paths[key], quantities=(self.dotted(stated.quantity),))
+            return
+        self.stated[stated.quantity] = stated
+        self.keys[stated.quantity] = key
+        self.measured.discard(stated.quantity)
+        self.carried.discard(stated.quantity)
 
     # ------------------------------------------------------- measured data
     def measure(self, key: str, raw: dict) -> None:
@@ -486,6 +522,9 @@ class _BlockCheck:
                     ilo, ihi = (_exp(state.lo[i]), _exp(state.hi[i])) if state.ok else (None, None)
                     out[q] = Cell("conflict", low, high, value, quantity.si_unit, s.unit, ilo, ihi,
                                   text=s.text)
+                elif q in self.carried:
+                    unit = self.unit_for(q, value) if value else s.unit
+                    out[q] = Cell("derived", low, high, value, quantity.si_unit, unit)
                 else:
                     out[q] = Cell("stated", low, high, value, quantity.si_unit, s.unit, text=s.text)
             elif d.state.known(i) and i not in self.fixed:

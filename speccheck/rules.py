@@ -100,6 +100,37 @@ _RULES = (
          "The FWHM bandwidth of a measured spectrum and the FWHM of a measured autocorrelation are "
          "compared with the stated spectral_bandwidth and autocorrelation_width, with the tolerance.",
          "spectral_bandwidth: 8 nm   # spectrum.csv has 12 nm", "spectral_bandwidth: 12 nm"),
+    # ---- the beam path
+    Rule("stage-parameter", "error", "a stage parameter that is missing, misplaced or out of range",
+         "Each stage kind takes its own parameters (`speccheck explain stage-parameter` lists them); "
+         "a transmission or efficiency is at most 100%.",
+         "- {name: lens, kind: focus}", "- {name: lens, kind: focus, focal_length: 150 mm}"),
+    Rule("unknown-material", "error", "a material stage names a glass speccheck has no data for",
+         "Materials come from the material table (materials.py) with published Sellmeier coefficients.",
+         "material: quartz_glass", "material: fused_silica"),
+    Rule("stage-model", "note", "an approximation a stage's physics makes",
+         "Harmonic and parametric stages use first estimates (common practice): a harmonic of a Gaussian "
+         "pulse is √order shorter; a parametric output is as long as its pump."),
+    Rule("splitter-exceeds-input", "error", "branches of a splitter that take more than the input",
+         "The energies of the two branches of a splitter cannot add up to more than the beam entering it.",
+         "branches: {pump: {fraction: 70%}, probe: {fraction: 40%}}",
+         "branches: {pump: {fraction: 70%}, probe: {fraction: 30%}}"),
+    Rule("photon-energy-not-conserved", "error", "signal and idler wavelengths that do not fit the pump",
+         "In a parametric process 1/λp = 1/λs + 1/λi (photon-energy conservation).",
+         "pump 800 nm, signal 1300 nm, idler 1800 nm", "pump 800 nm, signal 1300 nm, idler 2080 nm"),
+    Rule("target-met", "note", "a target requirement that the path meets",
+         "Each target line is a requirement at the last stage of its branch; the note gives the margin."),
+    Rule("target-not-met", "error", "a target requirement that the path does not meet",
+         "The finding gives the value the path reaches, the ratio to the requirement, and the stage that "
+         "costs the most (the largest loss of intensity, or the largest broadening).",
+         "target: {peak_intensity: '>= 1e16 W/cm^2'}", "target: {peak_intensity: '>= 1e14 W/cm^2'}"),
+    Rule("target-uncertain", "warning", "a target requirement met only within part of the tolerances",
+         "The path's interval for the quantity straddles the requirement."),
+    Rule("target-unknown", "warning", "a target the path does not determine",
+         "The numbers needed to compute the quantity at the end of the branch are not stated."),
+    Rule("dispersion-compensation", "note", "the GDD that would give the shortest pulse at the target",
+         "With net GDD φ at the end of a branch, adding −φ returns the pulse to its transform limit "
+         "(Gaussian model: τ = τ_TL √(1 + (4 ln2 φ/τ_TL²)²))."),
     # ---- physics
     Rule("relation-conflict", "error", "stated values that physics says cannot all be true",
          "The stated values are checked against every relation of the relation table (energy = "
@@ -140,6 +171,27 @@ _RULES = (
          "and beam profile; when the spec does not state them, Gaussian is assumed.",
          "pulse_energy: 1 mJ\npulse_duration: 30 fs", "pulse_energy: 1 mJ\npulse_duration: 30 fs\n"
          "pulse_shape: gaussian"),
+    # ---- inline suppressions (suppress.py)
+    Rule("suppression-without-reason", "error", "an inline suppression that gives no reason",
+         "A comment '# speccheck: allow <rule-id> -- <reason>' on the line of a value drops that rule's "
+         "findings on that line. The reason after ' -- ' is required, so that whoever reads the spec "
+         "later knows why the finding was accepted; without one the suppression still applies, but is "
+         "reported.",
+         "pulse_energy: 20 nJ  # speccheck: allow relation-conflict",
+         "pulse_energy: 20 nJ  # speccheck: allow relation-conflict -- as printed on the maker's sheet"),
+    Rule("invalid-suppression", "error", "an inline suppression that cannot be understood",
+         "After '# speccheck:' comes 'allow', one or more rule ids separated by commas, ' -- ' and the "
+         "reason. An unknown rule id (the message suggests the closest one), another word than 'allow', "
+         "or a rule that cannot be suppressed (those that say the file was not read, and these "
+         "suppression rules) is reported.",
+         "m2: 0.9  # speccheck: allow m2-below-on -- measured with a clipped beam",
+         "m2: 0.9  # speccheck: allow m2-below-one -- measured with a clipped beam"),
+    Rule("unused-suppression", "warning", "an inline suppression that suppresses nothing",
+         "A suppression whose rule reports nothing on its line is stale (the value was fixed, or the "
+         "comment is on the wrong line) and would hide a later finding without anyone noticing; "
+         "remove it.",
+         "wavelength: 800 nm  # speccheck: allow sub-cycle-pulse -- a few-cycle source",
+         "wavelength: 800 nm"),
 )
 
 RULES: dict[str, Rule] = {r.id: r for r in _RULES}

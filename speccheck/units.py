@@ -68,8 +68,9 @@ class Constants:
 
 def normalise_unit_text(text: str) -> str:
     text = text.strip()
-    text = _SUPER_MINUS.sub(lambda m: "^-" + m.group(1), text)
-    return text.translate(_SUPERSCRIPTS).replace("**", "^")
+    text = text.translate(_SUPERSCRIPTS)  # "cm⁻¹" -> "cm⁻^1"
+    text = _SUPER_MINUS.sub(lambda m: "^-" + m.group(1), text)  # -> "cm^-1"
+    return text.replace("**", "^")
 
 
 def screen_unit_text(text: str) -> None:
@@ -172,16 +173,21 @@ def format_number(x: float, digits: int = 4) -> str:
         if "." in text:
             text = text.rstrip("0").rstrip(".")
         return text
-    mantissa = f"{x / 10 ** exponent:.{digits - 1}f}".rstrip("0").rstrip(".")
-    return f"{mantissa}e{exponent}"
+    # the float's own decimal exponent form: no 10**exponent that underflows (5e-324)
+    # and no mantissa rounded up to 10 ("10e8")
+    mantissa, exponent = f"{x:.{max(digits - 1, 0)}e}".split("e")
+    if "." in mantissa:
+        mantissa = mantissa.rstrip("0").rstrip(".")
+    return f"{mantissa}e{int(exponent)}"
 
 
 def pretty_unit(text: str) -> str:
     return text.replace("^2", "²").replace("^3", "³").replace("^-1", "⁻¹").replace("**", "^")
 
 
-def choose_unit(units: UnitSystem, si_value: float, display_unit: str) -> str:
-    """The unit to show a derived value in: the display unit with a sensible prefix."""
+def choose_unit(units: UnitSystem, si_value: float, display_unit: str, keep: bool = False) -> str:
+    """The unit to show a value in: ``display_unit`` with an engineering prefix that fits the
+    number; with ``keep`` (a unit the user chose) it is kept while the number reads well."""
     if display_unit in _FIXED or not math.isfinite(si_value) or si_value == 0:
         return display_unit
     base = display_unit
@@ -191,7 +197,7 @@ def choose_unit(units: UnitSystem, si_value: float, display_unit: str) -> str:
             break
     if base not in _PREFIXABLE:
         return display_unit
-    if 0.1 <= abs(si_value / units.factor(display_unit)) < 1e4:
+    if keep and 0.1 <= abs(si_value / units.factor(display_unit)) < 1e4:
         return display_unit  # the unit people chose reads well: keep it (1030 nm, not 1.03 µm)
     in_base = si_value / units.factor(base)
     best = base

@@ -71,6 +71,16 @@ def parse_tolerance(raw, default: float = 0.05) -> float:
 class ValueParser:
     def __init__(self, units: UnitSystem) -> None:
         self.units = units
+        self._extra: dict[str, dict[str, str]] = {}  # labels of non-quantity values -> dimensions
+        self._signed: set[str] = set()  # labels whose values may be negative
+
+    def parse_as(self, label: str, raw, dimension: str, tolerance: float, signed: bool = False) -> Stated:
+        """Parse a value that is not a block quantity (a stage parameter) with one dimension;
+        ``signed`` values (a GDD) may be negative."""
+        self._extra[label] = {dimension: label}
+        if signed:
+            self._signed.add(label)
+        return self.parse(label, raw, tolerance)
 
     # ---------------------------------------------------------------- public
     def parse(self, key: str, raw, tolerance: float) -> Stated:
@@ -119,6 +129,9 @@ class ValueParser:
             unit = tol_unit
         quantity, si, unit_text = self._to_si(key, number, unit, text)
         _, tol_si, _ = self._to_si(key, tol_number, tol_unit or unit, text, positive=False)
+        _finite_spread(key, abs(si) + tol_si, text)
+        if key in self._signed:
+            return Stated(quantity, si - tol_si, si + tol_si, si, unit_text, text.strip())
         _positive(key, si, text)
         return Stated(quantity, max(si - tol_si, 0.0), si + tol_si, si, unit_text, text.strip())
 
@@ -136,6 +149,7 @@ class ValueParser:
         text = ", ".join(f"{k}: {v.text}" for k, v in parsed.items())
         if set(parsed) == {"typical"}:
             t = parsed["typical"].typical
+            _finite_spread(key, t * (1 + tolerance), text)
             return Stated(first.quantity, t * (1 - tolerance), t * (1 + tolerance), t, first.unit, text)
         low = parsed["min"].typical if "min" in parsed else 0.0
         high = parsed["max"].typical if "max" in parsed else math.inf
@@ -146,6 +160,10 @@ class ValueParser:
 
     def _from_number(self, key, number: float, unit: str | None, tolerance: float, text: str) -> Stated:
         quantity, si, unit_text = self._to_si(key, number, unit, text)
+        _finite_spread(key, abs(si) * (1 + tolerance), text)
+        if key in self._signed:
+            low, high = sorted((si * (1 - tolerance), si * (1 + tolerance)))
+            return Stated(quantity, low, high, si, unit_text, text)
         _positive(key, si, text)
         return Stated(quantity, si * (1 - tolerance), si * (1 + tolerance), si, unit_text, text)
 
@@ -169,7 +187,7 @@ class ValueParser:
     def _to_si(self, key, number: float, unit: str | None, text: str, positive: bool = True):
         """Resolve the quantity by the unit's dimension and convert to SI."""
         base = key.split(".")[0]
-        names = ALIASES.get(base) or {BY_NAME[base].si_unit: base}
+        names = self._extra.get(key) or self._extra.get(base) or ALIASES.get(base) or {BY_NAME[base].si_unit: base}
         if not math.isfinite(number):
             raise ValueProblem("non-finite-value", f"{key}: {text.strip()!r} is not a finite number")
         if not unit:
@@ -199,7 +217,8 @@ class ValueParser:
 
 
 _EXAMPLES = {"m": "800 nm", "s": "150 fs", "Hz": "80 MHz", "1/m": "100 cm^-1", "J": "25 nJ",
-             "W": "2 W", "W/m^2": "1e14 W/cm^2", "J/m^2": "1 J/cm^2", "V/m": "1e9 V/m"}
+             "W": "2 W", "W/m^2": "1e14 W/cm^2", "J/m^2": "1 J/cm^2", "V/m": "1e9 V/m",
+             "s^2": "-800 fs^2", "s^3": "2000 fs^3", "1": "92%"}
 
 
 def _example(names: dict[str, str]) -> str:
@@ -209,6 +228,12 @@ def _example(names: dict[str, str]) -> str:
 def _positive(key: str, si: float, text: str) -> None:
     if si <= 0.0:
         raise ValueProblem("non-positive-value", f"{key}: {text.strip()!r} must be positive")
+
+
+def _finite_spread(key: str, far_end: float, text: str) -> None:
+    """A value whose tolerance reaches past the float range would read as unbounded."""
+    if not math.isfinite(far_end):
+        raise ValueProblem("non-finite-value", f"{key}: {text.strip()!r} with its tolerance overflows in SI units")
 
 
 def _to_float(raw: int | float, what: str) -> float:

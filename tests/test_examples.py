@@ -14,6 +14,7 @@ EXPECTED = {
     "maker-sheet-operating-points.yaml": [("relation-conflict", 18, None),
                                           ("operating-point-beyond-limit", 27, None)],
     "fibre-oscillator-measured.yaml": [("relation-conflict", 12, "laser.pulse_duration")],
+    "amplifier-pump-probe-path.yaml": [("target-not-met", 39, None)],
     "typos-and-units.yaml": [("unknown-key", 8, None), ("wrong-dimension", 9, None),
                              ("missing-unit", 10, None), ("duplicate-key", 12, None)],
 }

@@ -114,3 +114,8 @@ def test_tolerances_are_read_as_fractions():
     assert parse_tolerance(0.02) == pytest.approx(0.02)
     with pytest.raises(ValueProblem):
         parse_tolerance("150%")
+
+
+@pytest.mark.parametrize("text", ["74 cm⁻¹", "74 cm^-1", "74 1/cm"])
+def test_superscript_minus_one_is_read(parse, text):
+    assert parse("spectral_bandwidth", text).typical == pytest.approx(7400.0)

@@ -54,6 +54,42 @@ def _cell_text(cell: Cell, show) -> str:
     return text
 
 
+_MARK = {"stated": " ", "derived": "=", "conflict": "!"}
+
+
+def _grid(console: Console, sheet: dict, show) -> None:
+    """Rows are quantities, columns the laser and each stage; wide sheets are split into
+    chunks of columns that fit the console."""
+    rows: list[str] = []
+    for cells in sheet.values():
+        rows += [q for q in cells if q not in rows]
+    names = list(sheet)
+    label_width = max(len(q) for q in rows) + 1 if rows else 10
+    cell_width = 15
+    per_chunk = max(1, (console.width - label_width - 2) // (cell_width + 2))
+    console.print(Text("  stated   =derived   !conflict", style="dim"))
+    for start in range(0, len(names), per_chunk):
+        chunk = names[start:start + per_chunk]
+        table = Table(show_header=True, header_style="bold", box=None, pad_edge=False)
+        table.add_column("", no_wrap=True, min_width=label_width)
+        for name in chunk:
+            table.add_column(name, no_wrap=True, overflow="ellipsis", max_width=cell_width)
+        for q in rows:
+            values = []
+            for name in chunk:
+                cell = sheet[name].get(q)
+                if cell is None:
+                    values.append(Text(""))
+                    continue
+                unit = cell.display_unit or cell.unit
+                number = show(cell.value, unit) if cell.value is not None else (
+                    "≥ " + show(cell.low, unit) if cell.low is not None else "≤ " + show(cell.high, unit))
+                values.append(Text(_MARK[cell.status] + number, style=_STATUS_STYLE[cell.status]))
+            if any(v.plain for v in values):
+                table.add_row(q, *values)
+        console.print(table)
+
+
 def write(results: list[FileResult], out, options) -> None:
     color = bool(options and options.color)
     console = Console(file=out, color_system="auto" if color else None, force_terminal=color,
@@ -65,7 +101,9 @@ def write(results: list[FileResult], out, options) -> None:
         if result.title:
             header.append(f" — {result.title}")
         console.print(header)
-        if options is None or options.show_sheet:
+        if (options is None or options.show_sheet) and len(result.sheet) > 1:
+            _grid(console, result.sheet, show)
+        elif options is None or options.show_sheet:
             for block, cells in result.sheet.items():
                 if not cells:
                     continue

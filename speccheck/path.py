@@ -1,0 +1,294 @@
+"""The beam path: stage kinds as data, each with the physics that maps its input beam
+to its output beam.
+
+A *beam* is what passes from one column of the sheet to the next: intervals
+``(low, typical, high)`` in SI for the primary quantities (``CARRIED``), the
+net group-delay dispersion relative to the transform limit, and the pulse's
+transform-limited duration.  Everything else of a column (peak power,
+intensity, fluence, field, …) is derived again in that column by the relation
+table, so a stage only says what it changes.
+
+Pulse duration after dispersion uses the Gaussian closed form
+τ = τ_TL √(1 + (4 ln2 φ / τ_TL²)²) with the accumulated GDD φ (see
+``dispersion.py``); for other pulse shapes it is an approximation, and the
+finding says so.  A laser pulse longer than its transform limit is taken to
+carry positive chirp (common practice: normal dispersion in the source).
+"""
+
+from __future__ import annotations
+
+import math
+from dataclasses import dataclass, field, replace
+from typing import Callable
+
+CARRIED = ("wavelength", "repetition_rate", "pulse_energy", "average_power", "pulse_duration",
+           "spectral_bandwidth", "beam_diameter", "m2")
+_FOUR_LN2 = 4.0 * math.log(2.0)
+
+Value = tuple  # (low, typical, high); low 0 / high inf when unbounded; typical may be None
+
+
+def scaled(v: Value, f: Value) -> Value:
+    """The product of two positive intervals."""
+    typ = v[1] * f[1] if v[1] is not None and f[1] is not None else None
+    return (v[0] * f[0], typ, v[2] * f[2])
+
+
+def inverted(v: Value) -> Value:
+    return (1.0 / v[2] if v[2] > 0 else 0.0, 1.0 / v[1] if v[1] else None,
+            1.0 / v[0] if v[0] > 0 else math.inf)
+
+
+def point(x: float) -> Value:
+    return (x, x, x)
+
+
+def typical(v: Value) -> float | None:
+    if v[1] is not None:
+        return v[1]
+    if v[0] > 0 and math.isfinite(v[2]):
+        return math.sqrt(v[0] * v[2])
+    return None
+
+
+@dataclass(frozen=True)
+class Beam:
+    values: dict  # quantity -> Value
+    net_gdd: Value = (0.0, 0.0, 0.0)  # s², relative to the transform limit (may be negative)
+    tl_duration: Value | None = None  # s
+    stage_gdd: Value | None = None  # s², what the last stage added
+
+    def get(self, q: str) -> Value | None:
+        return self.values.get(q)
+
+    def with_values(self, **changes) -> "Beam":
+        values = dict(self.values)
+        for q, v in changes.items():
+            if v is None:
+                values.pop(q, None)
+            else:
+                values[q] = v
+        return replace(self, values=values)
+
+
+def duration_after(tl: Value, gdd: Value) -> Value:
+    """τ = τ_TL √(1 + (4 ln2 φ/τ_TL²)²) over the corners of the two intervals."""
+    def tau(t0: float, phi: float) -> float:
+        return t0 * math.sqrt(1.0 + (_FOUR_LN2 * phi / t0**2) ** 2)
+
+    corners = [tau(t0, phi) for t0 in (tl[0], tl[2]) for phi in (gdd[0], gdd[2]) if t0 > 0 and math.isfinite(t0)]
+    # the shortest pulse for a given φ is at τ_TL = √(4 ln2 |φ|): include it when inside
+    for phi in (gdd[0], gdd[2]):
+        t_star = math.sqrt(_FOUR_LN2 * abs(phi))
+        if tl[0] < t_star < tl[2]:
+            corners.append(tau(t_star, phi))
+    mid = tau(typical(tl), gdd[1]) if typical(tl) else None
+    if not corners:
+        return (0.0, mid, math.inf)
+    return (min(corners), mid, max(corners))
+
+
+def intrinsic_gdd(duration: Value, tl: Value) -> Value:
+    """GDD a pulse of this duration already carries over its transform limit (positive chirp)."""
+    t, t0 = typical(duration), typical(tl)
+    if not t or not t0 or t <= t0:
+        return (0.0, 0.0, 0.0)
+    phi = t0**2 / _FOUR_LN2 * math.sqrt((t / t0) ** 2 - 1.0)
+    return (phi, phi, phi)
+
+
+# ------------------------------------------------------------------ stage kinds
+
+@dataclass(frozen=True)
+class Param:
+    name: str
+    dimension: str  # a key of units.DIMENSION_NAMES, or "text", "count"
+    required: bool = False
+    default: float | None = None
+    choices: tuple = ()
+
+
+@dataclass(frozen=True)
+class StageKind:
+    name: str
+    params: tuple[Param, ...]
+    apply: Callable  # (beam, params: dict[name, Value | str], ctx) -> Beam
+    summary: str
+    source: str = ""
+    one_of: tuple = ()  # at least one of these parameters is needed
+
+    def param(self, name: str) -> Param | None:
+        return next((p for p in self.params if p.name == name), None)
+
+
+@dataclass(frozen=True)
+class StageContext:
+    c: float
+    transform_limit: float  # of the pulse shape
+    gvd: Callable[[str, float], float]  # (material, wavelength m) -> s²/m
+    note: Callable[[str], None] = field(default=lambda text: None)
+
+
+_T = Param("transmission", "1", default=1.0)
+
+
+def _transmit(beam: Beam, t: Value) -> Beam:
+    return beam.with_values(**{q: scaled(beam.get(q), t) for q in ("pulse_energy", "average_power")
+                               if beam.get(q)})
+
+
+def _optic(beam, p, ctx):
+    return _transmit(beam, p["transmission"])
+
+
+def _picker(beam, p, ctx):
+    n = p["divide_by"]
+    beam = _transmit(beam, p["transmission"])
+    changes = {}
+    if beam.get("repetition_rate"):
+        changes["repetition_rate"] = scaled(beam.get("repetition_rate"), inverted(n))
+    if beam.get("average_power"):
+        changes["average_power"] = scaled(beam.get("average_power"), inverted(n))
+    return beam.with_values(**changes)
+
+
+def _amplifier(beam, p, ctx):
+    if p.get("gain") is not None:
+        gain = p["gain"]
+    elif p.get("output_energy") is not None and beam.get("pulse_energy"):
+        return beam.with_values(pulse_energy=p["output_energy"], average_power=(
+            scaled(p["output_energy"], beam.get("repetition_rate")) if beam.get("repetition_rate") else None))
+    elif p.get("output_power") is not None:
+        rate = beam.get("repetition_rate")
+        return beam.with_values(average_power=p["output_power"], pulse_energy=(
+            scaled(p["output_power"], inverted(rate)) if rate else None))
+    else:
+        return beam
+    return beam.with_values(**{q: scaled(beam.get(q), gain) for q in ("pulse_energy", "average_power")
+                               if beam.get(q)})
+
+
+def _add_gdd(beam: Beam, gdd: Value, ctx) -> Beam:
+    net = (beam.net_gdd[0] + gdd[0], beam.net_gdd[1] + gdd[1], beam.net_gdd[2] + gdd[2])
+    beam = replace(beam, net_gdd=net, stage_gdd=gdd)
+    if beam.tl_duration is not None:
+        beam = beam.with_values(pulse_duration=duration_after(beam.tl_duration, net))
+    return beam
+
+
+def _dispersion(beam, p, ctx):
+    return _add_gdd(beam, p["gdd"], ctx)
+
+
+def _material(beam, p, ctx):
+    lam = beam.get("wavelength")
+    if lam is None or typical(lam) is None:
+        ctx.note("the wavelength is not known here, so the material's dispersion cannot be computed")
+        return _transmit(beam, p["transmission"])
+    gvd = ctx.gvd(p["material"], typical(lam))
+    thickness = p["thickness"]
+    gdd = tuple(sorted((gvd * thickness[0], gvd * thickness[2]))) if gvd else (0.0, 0.0)
+    value = (gdd[0], gvd * thickness[1], gdd[1])
+    return replace(_add_gdd(_transmit(beam, p["transmission"]), value, ctx), stage_gdd=value)
+
+
+def _compressor(beam, p, ctx):
+    beam = _transmit(beam, p["transmission"])
+    return _add_gdd(beam, p["gdd"], ctx) if p.get("gdd") is not None else beam
+
+
+def _harmonic(beam, p, ctx):
+    n = int(round(p["order"][1]))
+    root = math.sqrt(n)
+    eff = p["efficiency"]
+    changes = {q: scaled(beam.get(q), eff) for q in ("pulse_energy", "average_power") if beam.get(q)}
+    if beam.get("wavelength"):
+        changes["wavelength"] = scaled(beam.get("wavelength"), point(1.0 / n))
+    if beam.get("pulse_duration"):
+        changes["pulse_duration"] = scaled(beam.get("pulse_duration"), point(1.0 / root))
+    if beam.get("spectral_bandwidth"):
+        changes["spectral_bandwidth"] = scaled(beam.get("spectral_bandwidth"), point(root))
+    ctx.note(f"duration and bandwidth of the harmonic taken as τ/√{n} and √{n}·Δν (Gaussian pulse, "
+             "undepleted pump, no group-velocity mismatch: common practice)")
+    tl = scaled(beam.tl_duration, point(1.0 / root)) if beam.tl_duration else None
+    net = tuple(x / n for x in beam.net_gdd)
+    return replace(beam.with_values(**changes), tl_duration=tl, net_gdd=net)
+
+
+def _parametric(beam, p, ctx):
+    pump = beam.get("wavelength")
+    signal, idler = p.get("signal_wavelength"), p.get("idler_wavelength")
+    if pump and signal and idler is None:
+        idler = inverted(_difference(inverted(pump), inverted(signal)))
+    if pump and idler and signal is None:
+        signal = inverted(_difference(inverted(pump), inverted(idler)))
+    out = signal if p.get("output", "signal") == "signal" else idler
+    changes = {q: scaled(beam.get(q), p["efficiency"]) for q in ("pulse_energy", "average_power") if beam.get(q)}
+    changes["wavelength"] = out
+    changes["spectral_bandwidth"] = None  # not known from the pump
+    ctx.note("the output pulse is taken to be as long as the pump (common practice for a first estimate)")
+    beam = beam.with_values(**changes)
+    return replace(beam, tl_duration=beam.get("pulse_duration"), net_gdd=(0.0, 0.0, 0.0))
+
+
+def _difference(a: Value, b: Value) -> Value:
+    lo, hi = a[0] - b[2], a[2] - b[0]
+    typ = a[1] - b[1] if a[1] is not None and b[1] is not None else None
+    return (max(lo, 1e-300), typ, hi)
+
+
+def _telescope(beam, p, ctx):
+    if not beam.get("beam_diameter"):
+        return beam
+    return beam.with_values(beam_diameter=scaled(beam.get("beam_diameter"), p["magnification"]))
+
+
+def _focus(beam, p, ctx):
+    d, lam, m2 = beam.get("beam_diameter"), beam.get("wavelength"), beam.get("m2") or point(1.0)
+    if not d or not lam:
+        ctx.note("the beam diameter and wavelength before the focus are needed for the spot size")
+        return beam.with_values(beam_diameter=None)
+    # 1/e² spot diameter 4 M² λ f / (π D) (Gaussian-beam optics)
+    spot = scaled(scaled(scaled(m2, lam), p["focal_length"]), inverted(scaled(d, point(math.pi / 4.0))))
+    return beam.with_values(beam_diameter=spot)
+
+
+def _splitter(beam, p, ctx):
+    return beam  # the branches take their shares (see check.py)
+
+
+STAGE_KINDS: dict[str, StageKind] = {k.name: k for k in (
+    StageKind("optic", (_T,), _optic, "a mirror, lens or window that loses power (transmission)"),
+    StageKind("attenuator", (Param("transmission", "1", required=True),), _optic,
+              "a deliberate loss: E and P times the transmission"),
+    StageKind("pulse_picker", (Param("divide_by", "1", required=True), _T), _picker,
+              "keeps one pulse in N: rate ÷ N, energy × transmission"),
+    StageKind("amplifier", (Param("gain", "1"), Param("output_energy", "J"), Param("output_power", "W")),
+              _amplifier, "energy × gain, or the output energy or power; rate unchanged",
+              one_of=("gain", "output_energy", "output_power")),
+    StageKind("dispersion", (Param("gdd", "s^2", required=True), Param("tod", "s^3")), _dispersion,
+              "adds group-delay dispersion (a prechirp, a chirped mirror set)",
+              "τ = τ_TL √(1 + (4 ln2 φ/τ_TL²)²) for a Gaussian pulse"),
+    StageKind("material", (Param("material", "text", required=True), Param("thickness", "m", required=True), _T),
+              _material, "a thickness of a named glass: GDD from its Sellmeier equation",
+              "GDD = GVD × L, GVD = λ³/(2πc²) d²n/dλ²"),
+    StageKind("compressor", (Param("gdd", "s^2"), _T), _compressor,
+              "a grating or prism compressor: negative GDD and a transmission"),
+    StageKind("harmonic", (Param("order", "1", required=True, choices=(2.0, 3.0)),
+                           Param("efficiency", "1", required=True)), _harmonic,
+              "second or third harmonic: λ ÷ order, energy × efficiency"),
+    StageKind("parametric", (Param("signal_wavelength", "m"), Param("idler_wavelength", "m"),
+                             Param("output", "text", choices=("signal", "idler")),
+                             Param("efficiency", "1", required=True)), _parametric,
+              "pump → signal + idler: 1/λp = 1/λs + 1/λi, energy × efficiency",
+              "photon-energy conservation", one_of=("signal_wavelength", "idler_wavelength")),
+    StageKind("telescope", (Param("magnification", "1", required=True),), _telescope,
+              "beam diameter × magnification"),
+    StageKind("beam_expander", (Param("magnification", "1", required=True),), _telescope,
+              "beam diameter × magnification"),
+    StageKind("splitter", (Param("ratio", "1", required=True),), _splitter,
+              "divides the beam into two named branches (pump–probe)"),
+    StageKind("focus", (Param("focal_length", "m", required=True),), _focus,
+              "focusing optic: 1/e² spot diameter 4 M² λ f / (π D)",
+              "Gaussian-beam optics (paraxial)"),
+)}

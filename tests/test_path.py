@@ -1,0 +1,209 @@
+"""The beam path: every stage kind, dispersion from glass data, targets, branches.
+
+References: Gaussian-beam optics (1/e² spot diameter 4 M² λ f/(π D), Rayleigh
+range π w0²/(M² λ)); the Gaussian-pulse broadening formula
+τ = τ0 √(1 + (4 ln2 φ/τ0²)²); GVD of fused silica 36.16 fs²/mm at 800 nm from
+Malitson's (1965) Sellmeier coefficients (checked in test_materials.py);
+photon-energy conservation 1/λp = 1/λs + 1/λi.
+"""
+
+import json
+import math
+
+import pytest
+
+from conftest import cell, rules_of
+
+LASER = """
+laser:
+  wavelength: 800 nm
+  repetition_rate: 1 kHz
+  average_power: 4 W
+  pulse_duration: 30 fs
+  pulse_shape: gaussian
+  beam_diameter: 10 mm
+  beam_profile: gaussian
+  m2: 1
+"""
+
+
+def run(check, path: str, target: str = ""):
+    return check(LASER + "path:\n" + path + (("target:\n" + target) if target else ""))
+
+
+def value(result, column, quantity):
+    return cell(result, quantity, column).value
+
+
+def test_optic_and_attenuator_scale_energy_and_power(check):
+    r = run(check, "  - {name: m1, kind: optic, transmission: 90%}\n"
+                   "  - {name: nd, kind: attenuator, transmission: 10%}\n")
+    assert value(r, "m1", "pulse_energy") == pytest.approx(4e-3 * 0.9)
+    assert value(r, "nd", "average_power") == pytest.approx(4 * 0.9 * 0.1)
+    assert value(r, "nd", "pulse_duration") == pytest.approx(30e-15)
+
+
+def test_a_pulse_picker_divides_the_rate_and_keeps_the_energy(check):
+    r = run(check, "  - {name: picker, kind: pulse_picker, divide_by: 10, transmission: 80%}\n")
+    assert value(r, "picker", "repetition_rate") == pytest.approx(100.0)
+    assert value(r, "picker", "pulse_energy") == pytest.approx(4e-3 * 0.8)
+    assert value(r, "picker", "average_power") == pytest.approx(4 * 0.8 / 10)
+
+
+@pytest.mark.parametrize("params, energy", [
+    ("gain: 5", 20e-3), ("output_energy: 10 mJ", 10e-3), ("output_power: 12 W", 12e-3)])
+def test_an_amplifier_by_gain_or_output(check, params, energy):
+    r = run(check, f"  - {{name: amp, kind: amplifier, {params}}}\n")
+    assert value(r, "amp", "pulse_energy") == pytest.approx(energy)
+    assert value(r, "amp", "repetition_rate") == pytest.approx(1e3)
+
+
+def test_dispersion_broadens_a_transform_limited_gaussian(check):
+    # The laser states no bandwidth, so its 30 fs pulse is taken as transform-limited.
+    # By hand: 30 fs √(1 + (4 ln2 × 500 / 900)²) = 30 × √(1 + 1.5403²) = 55.09 fs.
+    r = run(check, "  - {name: stretch, kind: dispersion, gdd: 500 fs^2}\n")
+    expected = 30 * math.sqrt(1 + (4 * math.log(2) * 500 / 900) ** 2)
+    assert value(r, "stretch", "pulse_duration") == pytest.approx(expected * 1e-15, rel=1e-9)
+    assert cell(r, "net_gdd", "stretch").value == pytest.approx(500e-30)
+
+
+def test_a_compressor_undoes_the_dispersion(check):
+    r = run(check, "  - {name: stretch, kind: dispersion, gdd: 2000 fs^2}\n"
+                   "  - {name: comp, kind: compressor, gdd: -2000 fs^2, transmission: 60%}\n")
+    assert value(r, "stretch", "pulse_duration") > 100e-15
+    assert value(r, "comp", "pulse_duration") == pytest.approx(30e-15)
+    assert value(r, "comp", "pulse_energy") == pytest.approx(4e-3 * 0.6)
+
+
+def test_a_material_stage_takes_its_gdd_from_the_sellmeier_equation(check):
+    # Fused silica at 800 nm: GVD 36.16 fs²/mm (from Malitson 1965's coefficients), so 10 mm adds 361.6 fs².
+    r = run(check, "  - {name: window, kind: material, material: fused_silica, thickness: 10 mm}\n")
+    assert cell(r, "stage_gdd", "window").value == pytest.approx(361.6e-30, rel=2e-3)
+    expected = 30 * math.sqrt(1 + (4 * math.log(2) * 361.6 / 900) ** 2)
+    assert value(r, "window", "pulse_duration") == pytest.approx(expected * 1e-15, rel=2e-3)
+
+
+def test_a_chirped_laser_pulse_carries_its_own_gdd(check):
+    # 30 nm at 800 nm gives τ_TL = 0.4413/14.05 THz = 31.4 fs; a 35 fs pulse carries
+    # φ = τ0²/(4 ln2) √((τ/τ0)² − 1) = 175 fs² (positive chirp assumed); by hand.
+    r = check(LASER.replace("pulse_duration: 30 fs", "pulse_duration: 35 fs\n  spectral_bandwidth: 30 nm")
+              + "path:\n  - {name: m, kind: optic}\n")
+    tl = 0.4413 / (299792458 * 30e-9 / 800e-9**2)
+    phi = tl**2 / (4 * math.log(2)) * math.sqrt((35e-15 / tl) ** 2 - 1)
+    assert cell(r, "net_gdd", "m").value == pytest.approx(phi, rel=2e-3)
+
+
+def test_a_second_harmonic_halves_the_wavelength(check):
+    r = run(check, "  - {name: shg, kind: harmonic, order: 2, efficiency: 40%}\n")
+    assert value(r, "shg", "wavelength") == pytest.approx(400e-9)
+    assert value(r, "shg", "pulse_energy") == pytest.approx(1.6e-3)
+    assert value(r, "shg", "pulse_duration") == pytest.approx(30e-15 / math.sqrt(2))
+    assert "stage-model" in [f.rule for f in r.findings]
+
+
+def test_a_harmonic_order_must_be_2_or_3(check):
+    r = run(check, "  - {name: h, kind: harmonic, order: 4, efficiency: 10%}\n")
+    assert ("stage-parameter", 12) in rules_of(r)
+
+
+def test_a_parametric_stage_conserves_photon_energy(check):
+    # 1/800 = 1/1300 + 1/λi  ⇒  λi = 1/(1/800 − 1/1300) nm = 2080 nm.
+    r = run(check, "  - {name: opa, kind: parametric, signal_wavelength: 1300 nm, output: idler, efficiency: 10%}\n")
+    assert value(r, "opa", "wavelength") == pytest.approx(1e-9 / (1 / 800 - 1 / 1300), rel=1e-9)
+    # 1/1300 + 1/1500 would need a 696 nm pump, not 800 nm.
+    bad = run(check, "  - {name: opa, kind: parametric, signal_wavelength: 1300 nm, idler_wavelength: 1500 nm,"
+                     " efficiency: 10%}\n")
+    assert "photon-energy-not-conserved" in [f.rule for f in bad.findings]
+
+
+def test_a_telescope_scales_the_beam(check):
+    r = run(check, "  - {name: tel, kind: telescope, magnification: 2.5}\n")
+    assert value(r, "tel", "beam_diameter") == pytest.approx(25e-3)
+
+
+def test_a_focus_gives_the_gaussian_spot_and_rayleigh_range(check):
+    # 4 M² λ f / (π D) = 4 × 800e-9 × 0.2 / (π × 0.01) = 20.37 µm; z_R = π w0²/λ = 0.4074 mm.
+    r = run(check, "  - {name: lens, kind: focus, focal_length: 200 mm}\n")
+    spot = 4 * 800e-9 * 0.2 / (math.pi * 0.01)
+    assert value(r, "lens", "beam_diameter") == pytest.approx(spot)
+    assert cell(r, "rayleigh_range", "lens").value == pytest.approx(math.pi * (spot / 2) ** 2 / 800e-9)
+    # and the intensity there follows from the relation table: 2 P_pk / (π w0²)
+    peak = 2 * math.sqrt(math.log(2) / math.pi) * 4e-3 / 30e-15
+    assert value(r, "lens", "peak_intensity") == pytest.approx(2 * peak / (math.pi * (spot / 2) ** 2))
+
+
+def test_a_measured_value_that_disagrees_with_the_path(check):
+    r = run(check, "  - name: m1\n    kind: optic\n    transmission: 90%\n    measured:\n"
+                   "      average_power: 2 W\n")
+    (finding,) = [f for f in r.findings if f.severity == "error"]
+    assert finding.rule == "measured-mismatch" and finding.line == 16 and "3.6 W" in finding.message
+
+
+def test_a_splitter_feeds_two_branches_that_cannot_exceed_the_input(check):
+    split = ("  - name: bs\n    kind: splitter\n    ratio: 70%\n    branches:\n"
+             "      pump: {path: [{name: pl, kind: focus, focal_length: 100 mm}]}\n"
+             "      probe: {path: [{name: window, kind: optic, transmission: 95%}]}\n")
+    r = run(check, split)
+    assert value(r, "pump", "pulse_energy") == pytest.approx(2.8e-3)
+    assert value(r, "probe", "pulse_energy") == pytest.approx(1.2e-3)
+    assert value(r, "window", "pulse_energy") == pytest.approx(1.2e-3 * 0.95)
+    over = run(check, split.replace("pump: {path", "pump: {fraction: 70%, path").replace(
+        "probe: {path", "probe: {fraction: 40%, path"))
+    assert "splitter-exceeds-input" in [f.rule for f in over.findings]
+
+
+def test_targets_met_missed_and_the_costliest_stage(check):
+    path = ("  - {name: m1, kind: optic, transmission: 95%}\n"
+            "  - {name: nd, kind: attenuator, transmission: 1%}\n"
+            "  - {name: lens, kind: focus, focal_length: 200 mm}\n")
+    r = run(check, path, "  peak_intensity: '>= 1e17 W/cm^2'\n  pulse_duration: '<= 45 fs'\n")
+    rules = {f.rule: f for f in r.findings}
+    assert rules["target-met"].message.startswith("target pulse_duration")
+    missed = rules["target-not-met"]
+    assert "'nd'" in missed.message and "factor 100" in missed.message
+
+
+def test_a_ten_stage_path_is_checked_end_to_end(check):
+    path = "".join(f"  - {s}\n" for s in (
+        "{name: periscope, kind: optic, transmission: 96%}",
+        "{name: picker, kind: pulse_picker, divide_by: 2}",
+        "{name: amp, kind: amplifier, gain: 3}",
+        "{name: stretch, kind: dispersion, gdd: 3000 fs^2}",
+        "{name: window, kind: material, material: n_bk7, thickness: 5 mm}",
+        "{name: comp, kind: compressor, gdd: -3220 fs^2, transmission: 70%}",
+        "{name: shg, kind: harmonic, order: 2, efficiency: 30%}",
+        "{name: expander, kind: beam_expander, magnification: 2}",
+        "{name: turning, kind: optic, transmission: 98%}",
+        "{name: lens, kind: focus, focal_length: 250 mm}"))
+    r = run(check, path, "  peak_intensity: '>= 1e15 W/cm^2'\n")
+    assert list(r.sheet) == ["laser", "periscope", "picker", "amp", "stretch", "window", "comp", "shg",
+                             "expander", "turning", "lens"]
+    assert not [f for f in r.findings if f.severity == "error"]
+    # N-BK7 at 800 nm: 44.65 fs²/mm × 5 mm = 223 fs² (SCHOTT coefficients); 3000 + 223 − 3220 ≈ 3 fs².
+    assert abs(cell(r, "net_gdd", "comp").value) < 10e-30
+    assert value(r, "lens", "wavelength") == pytest.approx(400e-9)
+
+
+def test_stage_errors_are_findings(check):
+    r = run(check, "  - {name: lens, kind: focus}\n"
+                   "  - {name: w, kind: material, material: unobtainium, thickness: 1 mm}\n"
+                   "  - {name: o, kind: optic, transmission: 150%}\n"
+                   "  - {name: o2, kind: optic, gdd: 100 fs^2}\n"
+                   "  - {name: o2, kind: optic}\n"
+                   "  - {name: x, kind: mirror}\n")
+    got = rules_of(r)
+    assert ("stage-parameter", 12) in got and ("unknown-material", 13) in got
+    assert ("stage-parameter", 14) in got and ("stage-parameter", 15) in got
+    assert ("duplicate-name", 16) in got and ("schema-violation", 17) in got
+
+
+def test_the_json_sheet_has_one_entry_per_stage_in_path_order(tmp_path):
+    import io
+
+    from speccheck.cli import run as cli_run
+
+    spec = tmp_path / "p.yaml"
+    spec.write_text("spec_version: 1" + LASER + "path:\n  - {name: a, kind: optic}\n  - {name: b, kind: optic}\n")
+    out = io.StringIO()
+    cli_run(["check", "--format", "json", str(spec)], stdout=out, stderr=io.StringIO())
+    assert list(json.loads(out.getvalue())["files"][0]["sheet"]) == ["laser", "a", "b"]

@@ -15,6 +15,7 @@ EXPECTED = {
                                           ("operating-point-beyond-limit", 27, None)],
     "fibre-oscillator-measured.yaml": [("relation-conflict", 12, "laser.pulse_duration")],
     "amplifier-pump-probe-path.yaml": [("target-not-met", 39, None)],
+    "proposal-focus-path.yaml": [("target-not-met", 25, None)],
     "typos-and-units.yaml": [("unknown-key", 8, None), ("wrong-dimension", 9, None),
                              ("missing-unit", 10, None), ("duplicate-key", 12, None)],
 }

@@ -14,13 +14,15 @@ from __future__ import annotations
 import difflib
 import math
 
+from . import hazards
 from .findings import Cell
 from .path import CARRIED, STAGE_KINDS, Beam, StageContext, intrinsic_gdd, point, scaled, typical
 from .quantities import BY_NAME
 from .values import Stated, ValueProblem
 
 _DISPERSIVE = {"dispersion", "material", "compressor"}
-_STAGE_KEYS = {"name", "kind", "measured", "branches"} | {p.name for k in STAGE_KINDS.values() for p in k.params}
+_STAGE_KEYS = {"name", "kind", "measured", "branches", "damage_threshold"} | {
+    p.name for k in STAGE_KINDS.values() for p in k.params}
 
 
 def _value(cell: Cell) -> tuple:
@@ -56,6 +58,19 @@ class _Chain:
         laser = data.get("laser") if isinstance(data.get("laser"), dict) else {}
         self.categorical = {k: laser[k] for k in ("pulse_shape", "beam_profile") if k in laser}
         self.context = None
+        defaults = data.get("defaults") if isinstance(data.get("defaults"), dict) else {}
+        self.b_limit = self.setting(defaults, "b_integral_limit", hazards.B_INTEGRAL_LIMIT)
+        self.safety_factor = self.setting(defaults, "damage_safety_factor", hazards.DAMAGE_SAFETY_FACTOR)
+
+    def setting(self, defaults: dict, key: str, default: float) -> float:
+        raw = defaults.get(key)
+        if raw is None:
+            return default
+        if isinstance(raw, (int, float)) and not isinstance(raw, bool) and raw > 0 and math.isfinite(raw):
+            return float(raw)
+        self.report.add("invalid-value", f"defaults.{key}: expected a positive number, got {raw!r}",
+                        ("defaults", key))
+        return default
 
     # ------------------------------------------------------------ helpers
     def stage_context(self, notes: list) -> StageContext:
@@ -70,7 +85,7 @@ class _Chain:
     def params(self, stage: dict, kind, at: tuple, name: str) -> dict | None:
         out: dict = {}
         ok = True
-        allowed = {p.name for p in kind.params} | {"name", "kind", "measured"} | (
+        allowed = {p.name for p in kind.params} | {"name", "kind", "measured", "damage_threshold"} | (
             {"branches"} if kind.name == "splitter" else set())
         for key in stage:
             if key in _STAGE_KEYS and key not in allowed:
@@ -185,17 +200,27 @@ class _Chain:
                 continue
             notes: list = []
             ctx = self.stage_context(notes)
+            incident = self.sheet.get(columns[-1], {})
             beam = kind.apply(beam, params, ctx)
             for text in notes:
                 self.report.add("stage-model", f"{name}: {text}", here, key=True)
             if kind.name == "parametric":
                 self.check_photon_energy(name, stage, beam, params, here)
-            cells = self.column(name, beam, stage.get("measured"), here)
+            measured = stage.get("measured")
+            if kind.name == "focus" and isinstance(measured, dict):
+                beam, measured = self.measured_spot(name, beam, measured, here, params)
+            cells = self.column(name, beam, measured, here)
             self.sheet[name] = cells
             columns = columns + [name]
             beam = beam_from(cells, beam, ctx.transform_limit)
             if kind.name == "focus":
-                self.focus_cells(cells)
+                self.focus_cells(name, cells, here)
+            if kind.name == "material":
+                self.nonlinear(name, params, cells, incident, here, columns)
+            else:
+                self.carry_b(columns)
+            if isinstance(stage.get("damage_threshold"), dict):
+                self.damage(name, stage["damage_threshold"], incident, here)
             if kind.name == "splitter":
                 self.split(name, stage, params, beam, here, columns)
                 return
@@ -261,9 +286,37 @@ class _Chain:
         cell = last.get("wavelength")
         return _value(cell) if cell else None
 
-    def focus_cells(self, cells: dict) -> None:
+    def measured_spot(self, name, beam, measured: dict, at, params):
+        """A measured focus spot may be larger than the diffraction limit, never smaller."""
+        rest = {k: v for k, v in measured.items() if k not in ("beam_diameter", "beam_radius")}
+        key = "beam_diameter" if "beam_diameter" in measured else "beam_radius" if "beam_radius" in measured else None
+        limit = beam.get("beam_diameter")
+        if key is None or limit is None:
+            return beam, measured
+        try:
+            s = self.c.values.parse(key, measured[key], self.tolerance)
+        except ValueProblem:
+            return beam, measured  # reported by the column
+        k = 2.0 if key == "beam_radius" else 1.0
+        spot = (s.low * k, (s.typical or 0) * k or None, s.high * k)
+        if spot[2] < limit[0]:
+            self.report.add(
+                "spot-below-diffraction-limit",
+                f"{name}: the measured focus {key} {s.text} is smaller than the diffraction limit "
+                f"{self._show('beam_diameter', typical(limit) / k, 'µm')} for this beam "
+                f"(1/e² diameter 4 M² λ f / (π D) with f = {params['focal_length'][1] * 1e3:.4g} mm)",
+                at + ("measured", key), quantities=(f"{name}.{key}",))
+            return beam, rest
+        return beam.with_values(beam_diameter=spot), rest
+
+    def focus_cells(self, name: str, cells: dict, at: tuple) -> None:
         """Rayleigh range z_R = π w0² / (M² λ) of the focus (Gaussian-beam optics)."""
         w, lam = cells.get("beam_radius"), cells.get("wavelength")
+        if w and lam and w.value and lam.value and w.value < lam.value / math.pi:
+            self.report.add("non-paraxial-focus",
+                            f"{name}: the 1/e² spot radius {self._show('beam_radius', w.value, 'µm')} is below "
+                            f"λ/π = {self._show('beam_radius', lam.value / math.pi, 'µm')}: outside the "
+                            "paraxial Gaussian-beam model, so the spot and intensity are estimates", at, key=True)
         m2 = cells.get("m2")
         if not (w and lam and w.value and lam.value):
             return
@@ -273,11 +326,159 @@ class _Chain:
         hi = math.pi * (w.high or w.value) ** 2 / (((m2.low if m2 and m2.low else m)) * (lam.low or lam.value))
         cells["rayleigh_range"] = Cell("derived", lo, hi, z, "m", "mm")
 
+    # ------------------------------------------------------ physical limits
+    def nonlinear(self, name: str, params: dict, cells: dict, incident: dict, at: tuple, columns: list) -> None:
+        """Self-focusing and B-integral of a material stage, for the beam entering it (the pulse
+        only gets longer inside, so the entrance is the worst case)."""
+        from . import materials
+
+        material = materials.lookup(params["material"])
+        lam = cells.get("wavelength")
+        peak = incident.get("peak_power") or cells.get("peak_power")
+        intensity = incident.get("peak_intensity") or cells.get("peak_intensity")
+        if material.n2 is None or not lam or not lam.value:
+            self.carry_b(columns)
+            return
+        n0 = float(materials.refractive_index(material, lam.value))
+        p_low = hazards.critical_power(lam.value, n0, material.n2[1])
+        p_high = hazards.critical_power(lam.value, n0, material.n2[0])
+        cells["critical_power"] = Cell("derived", p_low, p_high, math.sqrt(p_low * p_high), "W", "MW")
+        solid = material.name != "air"
+        if peak and peak.value:
+            shown = self._show("peak_power", peak.value, "MW")
+            crit = self._show('peak_power', p_low, 'MW') + (
+                "" if p_high / p_low < 1.001 else f" … {self._show('peak_power', p_high, 'MW')}")
+            n2 = f"{material.n2[0]:.3g}" + ("" if material.n2[1] == material.n2[0] else f"–{material.n2[1]:.3g}")
+            where = f"P_cr = 3.77 λ²/(8π n0 n2) = {crit} for {material.label} (n2 {n2} m²/W, " \
+                    f"{material.n2_source})"
+            radius = incident.get("beam_radius") or cells.get("beam_radius")
+            length = params["thickness"][1]
+            z_f = hazards.collapse_distance(peak.value, p_low, lam.value, n0, radius.value) \
+                if radius and radius.value else 0.0
+            if (peak.high or peak.value) > p_low and z_f < length:
+                self.report.add("self-focusing" if solid else "self-focusing-air",
+                                f"{name}: the peak power {shown} is above the critical power for self-focusing "
+                                f"and the beam collapses within the stage (Marburger's distance "
+                                f"{self._show('beam_radius', z_f, 'mm')} < {self._show('beam_radius', length, 'mm')}"
+                                f"), {where}", at, key=True, quantities=(f"{name}.peak_power",))
+            elif (peak.high or peak.value) > p_low:
+                self.report.add("self-focusing-risk",
+                                f"{name}: the peak power {shown} is above the critical power for self-focusing, "
+                                f"{where}; the collapse distance {self._show('beam_radius', z_f, 'mm')} is longer "
+                                "than the stage, so the B-integral decides", at, key=True,
+                                quantities=(f"{name}.peak_power",))
+        before = self.b_total(columns[:-1])
+        if intensity and intensity.value:
+            n2 = math.sqrt(material.n2[0] * material.n2[1])
+            b = hazards.b_integral(lam.value, n2, intensity.value, params["thickness"][1])
+            cells["b_integral"] = Cell("derived", hazards.b_integral(lam.value, material.n2[0], intensity.value,
+                                                                     params["thickness"][1]),
+                                       hazards.b_integral(lam.value, material.n2[1], intensity.value,
+                                                          params["thickness"][1]), b, "1", "1")
+            total = before + b
+            cells["b_integral_total"] = Cell("derived", total, total, total, "1", "1")
+            if total > self.b_limit >= before:
+                self.report.add("b-integral",
+                                f"{name}: the accumulated B-integral reaches {total:.3g} rad here ({b:.3g} rad in "
+                                f"this stage; B = (2π/λ) Σ n2 I L), above the limit of {self.b_limit:g} rad",
+                                at, key=True, quantities=(f"{name}.b_integral",))
+        elif before:
+            cells["b_integral_total"] = Cell("derived", before, before, before, "1", "1")
+
+    def b_total(self, columns: list) -> float:
+        for name in reversed(columns):
+            c = self.sheet.get(name, {}).get("b_integral_total")
+            if c is not None:
+                return c.value
+        return 0.0
+
+    def carry_b(self, columns: list) -> None:
+        total = self.b_total(columns[:-1])
+        if total:
+            self.sheet[columns[-1]]["b_integral_total"] = Cell("derived", total, total, total, "1", "1")
+
+    def damage(self, name: str, raw: dict, incident: dict, at: tuple) -> None:
+        """The incident peak fluence against the optic's rated damage threshold."""
+        where = at + ("damage_threshold",)
+        try:
+            rated = self.c.values.parse_as(f"{name}.damage_threshold.fluence", raw.get("fluence"), "J/m^2", 0.0)
+            tau_ref = (self.c.values.parse_as(f"{name}.damage_threshold.pulse_duration", raw["pulse_duration"],
+                                              "s", 0.0).typical if "pulse_duration" in raw else None)
+            lam_ref = (self.c.values.parse_as(f"{name}.damage_threshold.wavelength", raw["wavelength"], "m",
+                                              0.0).typical if "wavelength" in raw else None)
+        except ValueProblem as e:
+            self.report.add(e.rule, e.message, where)
+            return
+        fluence, tau, lam = (incident.get(q) for q in ("peak_fluence", "pulse_duration", "wavelength"))
+        if not fluence or not fluence.value or not rated.typical:
+            self.report.add("target-unknown", f"{name}: the peak fluence on this optic is not determined, so its "
+                            "damage threshold cannot be checked", where, key=True)
+            return
+        threshold, how = hazards.scaled_threshold(rated.typical, tau_ref, tau.value if tau else None)
+        notes = []
+        if how == "does not transfer":
+            notes.append(f"the rating is for {self._show('pulse_duration', tau_ref, 'fs')} and the pulse here is "
+                         f"{self._show('pulse_duration', tau.value, 'fs')}: below about 10 ps a damage rating does "
+                         "not transfer between durations (common practice), so this comparison is only indicative")
+        elif how != "as rated":
+            notes.append(f"threshold {how} to {self._show('peak_fluence', threshold, 'J/cm^2')}")
+        if lam_ref and lam and lam.value and abs(lam.value / lam_ref - 1) > 0.05:
+            notes.append(f"rated at {self._show('wavelength', lam_ref, 'nm')}, used at "
+                         f"{self._show('wavelength', lam.value, 'nm')}")
+        margin = threshold / fluence.value
+        text = (f"{name}: peak fluence {self._show('peak_fluence', fluence.value, 'J/cm^2')} on an optic rated "
+                f"{rated.text}; margin {margin:.3g}×" + ("; " + "; ".join(notes) if notes else ""))
+        if margin < 1:
+            self.report.add("optic-damage", text + ". Expect damage to this optic.", where, key=True)
+        elif margin < self.safety_factor:
+            self.report.add("optic-damage-margin", text + f", less than the safety factor {self.safety_factor:g}.",
+                            where, key=True)
+        elif how == "does not transfer":
+            self.report.add("damage-rating-not-transferable", text + ".", where, key=True)
+
+    def strong_field(self, last: str, target, target_at: tuple) -> None:
+        """Ponderomotive energy, a0 and, for a named gas, Keldysh parameter and HHG cutoff."""
+        cells = self.sheet.get(last, {})
+        intensity, lam = cells.get("peak_intensity"), cells.get("wavelength")
+        if not (intensity and intensity.value and lam and lam.value) or intensity.value < hazards.STRONG_FIELD_FROM:
+            return
+        k = self.c.units.constants
+        up = hazards.ponderomotive_energy(intensity.value, lam.value, k)
+        a0 = hazards.vector_potential(intensity.value, lam.value, k)
+        cells["ponderomotive_energy"] = Cell("derived", None, None, up, "J", "eV")
+        cells["normalized_vector_potential"] = Cell("derived", None, None, a0, "1", "1")
+        if a0 >= hazards.A0_NOTE_FROM:
+            self.report.add("relativistic-intensity",
+                            f"at {last!r} the normalized vector potential a0 = {a0:.3g} approaches 1: electrons "
+                            "become relativistic and the non-relativistic strong-field figures lose validity",
+                            target_at, key=True)
+        gas = target.get("gas") if isinstance(target, dict) else None
+        if not isinstance(gas, str):
+            return
+        gas = hazards.GAS_ALIASES.get(gas.lower(), gas.lower())
+        if gas not in hazards.IONIZATION_ENERGY_EV:
+            return  # the schema lists the gases
+        ev = self.c.units.constants.e
+        ip = hazards.IONIZATION_ENERGY_EV[gas] * ev
+        gamma = hazards.keldysh(ip, up)
+        cutoff = hazards.hhg_cutoff(ip, up)
+        photon = cells.get("photon_energy")
+        cells["ionization_potential"] = Cell("derived", ip, ip, ip, "J", "eV")
+        cells["keldysh_parameter"] = Cell("derived", None, None, gamma, "1", "1")
+        cells["hhg_cutoff_energy"] = Cell("derived", None, None, cutoff, "J", "eV")
+        order = f" (harmonic order {cutoff / photon.value:.0f})" if photon and photon.value else ""
+        regime = "tunnel" if gamma < 1 else "multiphoton"
+        self.report.add("strong-field-figures",
+                        f"at {last!r} in {gas}: U_p = {up / ev:.3g} eV, Keldysh γ = {gamma:.3g} ({regime} regime), "
+                        f"high-harmonic cutoff I_p + 3.17 U_p = {cutoff / ev:.4g} eV{order}, a0 = {a0:.3g}",
+                        target_at + ("gas",), quantities=(f"{last}.peak_intensity",))
+
     # ------------------------------------------------------------ targets
     def finish(self, columns: list, beam: Beam, target, target_at: tuple) -> None:
         last = columns[-1]
         cells = self.sheet.get(last, {})
         self.compensation(last, beam, target_at)
+        self.strong_field(last, target, target_at)
         if not isinstance(target, dict):
             return
         for key, raw in target.items():

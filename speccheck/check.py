@@ -87,12 +87,41 @@ class Checker:
                 points = data.get("operating_points")
                 if isinstance(points, list):
                     self._operating_points(block, points, tolerance, report, sheet)
-                if isinstance(data.get("path"), list):
+                if isinstance(data.get("path"), list) or isinstance(data.get("target"), dict):
                     from .chain import check_path
 
                     check_path(self, data, tolerance, report, sheet)
+            if sheet:
+                self._safety(data, sheet, report)
         findings = tuple(sorted(report.findings, key=Finding.sort_key))
         return FileResult(path, findings, sheet, title)
+
+    def _safety(self, data: dict, sheet: dict, report: _Report) -> None:
+        from . import safety
+
+        if not safety.is_hazard(sheet):
+            return
+        text = safety.CAUTION
+        raw = data.get("safety", {}).get("mpe") if isinstance(data.get("safety"), dict) else None
+        if raw is not None:
+            try:
+                mpe = self.values.parse_as("safety.mpe", raw, "J/m^2", 0.0)
+                as_fluence = True
+            except ValueProblem:
+                try:
+                    mpe = self.values.parse_as("safety.mpe", raw, "W/m^2", 0.0)
+                    as_fluence = False
+                except ValueProblem as e:
+                    report.add(e.rule, "safety.mpe: expected a fluence (J/cm^2) or an irradiance (W/cm^2), "
+                               f"got {raw!r}", ("safety", "mpe"))
+                    mpe = None
+            if mpe is not None and mpe.typical:
+                od = safety.optical_density(sheet, mpe.typical, as_fluence)
+                if od is not None:
+                    text += (f". With the MPE you gave ({mpe.text}), the indicative optical density at "
+                             f"{od[1]!r} is log10(H/MPE) = {od[0]:.2g}: a figure to discuss with your laser "
+                             "safety officer, not an eyewear specification")
+        report.add("laser-safety", text + ".", ("laser",), key=True)
 
     def _operating_points(self, block: dict, points: list, tolerance: float, report: _Report,
                           sheet: dict) -> None:

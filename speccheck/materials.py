@@ -303,10 +303,12 @@ MATERIALS: tuple[Material, ...] = (
         ),
         valid_range_um=(0.182, 1.129),  # Daimon & Masumura 2007 range
         source="M. Daimon and A. Masumura, Appl. Opt. 46, 3811 (2007)",
-        # No n2 value with a checked published source is stored yet.
-        n2=None,
-        n2_wavelength_m=None,
-        n2_source="",
+        # Published n2 of water near 800 nm spreads widely; the range below is
+        # from memory (Kerr-lens and Z-scan measurements, about 1.6-4.1e-20 m²/W),
+        # not checked against a paper: the widest reasonable bracket.
+        n2=(1.6e-20, 4.1e-20),
+        n2_wavelength_m=800e-9,
+        n2_source="range from memory of published Z-scan / Kerr measurements near 800 nm",
     ),
 )
 

@@ -131,6 +131,50 @@ _RULES = (
     Rule("dispersion-compensation", "note", "the GDD that would give the shortest pulse at the target",
          "With net GDD φ at the end of a branch, adding −φ returns the pulse to its transform limit "
          "(Gaussian model: τ = τ_TL √(1 + (4 ln2 φ/τ_TL²)²))."),
+    # ---- physical limits and safety
+    Rule("self-focusing", "error", "a peak power above the critical power for self-focusing in a solid",
+         "P_cr = 3.77 λ² / (8π n0 n2) for a Gaussian beam (Marburger's formula; J. H. Marburger, Prog. "
+         "Quantum Electron. 4, 35 (1975)); n2 of each material from the material table, with its published "
+         "range. Reported when the peak power is above P_cr and the collapse distance is shorter than the "
+         "stage: the beam collapses inside the material and damages it.",
+         "peak power 50 MW through 10 mm of fused silica at 800 nm (P_cr ≈ 2-3 MW)",
+         "peak power 1 MW through 10 mm of fused silica"),
+    Rule("self-focusing-risk", "note", "a peak power above the critical power, in a stage too short to collapse",
+         "Above P_cr a collimated beam collapses after Marburger's distance z_f = 0.367 k w² / "
+         "√((√(P/P_cr) − 0.852)² − 0.0219); when z_f is longer than the stage, the beam does not collapse "
+         "there, and the accumulated B-integral is the figure to watch."),
+    Rule("self-focusing-air", "warning", "a peak power above the critical power for self-focusing in air",
+         "P_cr of air is a few GW near 800 nm (n2 ≈ 3-4e-23 m²/W): long air paths at higher peak power "
+         "filament; a vacuum or helium path avoids it."),
+    Rule("b-integral", "warning", "an accumulated B-integral above the limit",
+         "B = (2π/λ) Σ n2 I_peak L over the material stages is the nonlinear phase the pulse gathers; "
+         "amplifier designs keep it below a few radians (common practice; `defaults: {b_integral_limit: 3}`)."),
+    Rule("optic-damage", "error", "a peak fluence above an optic's rated damage threshold",
+         "A stage's `damage_threshold: {fluence, pulse_duration, wavelength}` is the optic's rated value; "
+         "the incident peak fluence is compared with it. For pulses longer than about 10 ps thresholds "
+         "scale as √(τ/τ_ref) (common practice); for shorter pulses a rating does not transfer."),
+    Rule("optic-damage-margin", "warning", "a peak fluence within the safety factor of an optic's rating",
+         "Keep the fluence at least a safety factor below the rated threshold (default 2, common practice; "
+         "`defaults: {damage_safety_factor: 2}`)."),
+    Rule("damage-rating-not-transferable", "note", "a damage rating for another pulse duration",
+         "Below about 10 ps, damage thresholds do not follow the √τ rule (common practice): the rating "
+         "says little about this pulse."),
+    Rule("spot-below-diffraction-limit", "error", "a focus spot smaller than the diffraction limit",
+         "The 1/e² spot diameter of a focused Gaussian beam is at least 4 M² λ f / (π D) (Gaussian-beam "
+         "optics); a smaller stated spot is impossible for the stated optics."),
+    Rule("non-paraxial-focus", "note", "a focus tighter than the paraxial Gaussian model allows",
+         "A 1/e² spot radius below λ/π is outside the paraxial approximation: the spot size and the "
+         "intensity there are estimates only."),
+    Rule("strong-field-figures", "note", "ponderomotive energy, Keldysh parameter and HHG cutoff at the target",
+         "U_p = e² E² / (4 m_e ω²) (≈ 9.33e-14 I[W/cm²] λ²[µm²] eV); γ = √(I_p / 2U_p) (Keldysh 1965); "
+         "cutoff I_p + 3.17 U_p (three-step model, Corkum 1993); ionization energies from the NIST "
+         "Atomic Spectra Database. Given when the target names a gas."),
+    Rule("relativistic-intensity", "note", "a normalized vector potential a0 approaching 1",
+         "a0 = e E / (m_e ω c) ≈ 0.855 λ[µm] √(I / 10^18 W/cm²); near 1 electrons become relativistic."),
+    Rule("laser-safety", "note", "the usual laser-safety cautions",
+         "Every spec of a pulsed or more-than-milliwatt beam carries the usual cautions. speccheck does not "
+         "classify lasers or compute exposure limits: follow IEC 60825-1 or ANSI Z136.1, local rules and "
+         "your laser safety officer."),
     # ---- physics
     Rule("relation-conflict", "error", "stated values that physics says cannot all be true",
          "The stated values are checked against every relation of the relation table (energy = "

@@ -16,6 +16,10 @@ EXPECTED = {
     "fibre-oscillator-measured.yaml": [("relation-conflict", 12, "laser.pulse_duration")],
     "amplifier-pump-probe-path.yaml": [("target-not-met", 39, None)],
     "proposal-focus-path.yaml": [("target-not-met", 25, None)],
+    "rod-self-focusing.yaml": [("b-integral", 16, None), ("self-focusing", 16, None)],
+    "mirror-damage.yaml": [("optic-damage", 20, None)],
+    "impossible-focus.yaml": [("spot-below-diffraction-limit", 17, None)],
+    "hhg-argon.yaml": [],
     "typos-and-units.yaml": [("unknown-key", 8, None), ("wrong-dimension", 9, None),
                              ("missing-unit", 10, None), ("duplicate-key", 12, None)],
 }
@@ -45,3 +49,9 @@ def test_the_consistent_examples_derive_their_headline_numbers(checker):
     peak = result.sheet["laser"]["peak_power"]
     # By hand: ≥ 0.9394 × 4.8 mJ / 35 fs = 1.29e11 W (the duration is an upper bound).
     assert peak.status == "derived" and peak.low == pytest.approx(0.9394 * 4.8e-3 / 35e-15, rel=1e-3)
+
+
+def test_the_hhg_example_reports_its_cutoff(reading_checker):
+    result = reading_checker.check_text((ROOT / "hhg-argon.yaml").read_bytes(), "hhg-argon.yaml")
+    (finding,) = [f for f in result.findings if f.rule == "strong-field-figures"]
+    assert "cutoff" in finding.message and "argon" in finding.message

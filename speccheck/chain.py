@@ -11,16 +11,15 @@ their branch, and a missed target names the stage that costs the most.
 
 from __future__ import annotations
 
-import difflib
 import math
 
 from . import hazards
 from .findings import Cell
 from .path import CARRIED, STAGE_KINDS, Beam, StageContext, intrinsic_gdd, point, scaled, typical
 from .quantities import BY_NAME
+from .shapes import DEFAULT_SHAPE, PULSE_SHAPES
 from .values import Stated, ValueProblem
 
-_DISPERSIVE = {"dispersion", "material", "compressor"}
 _STAGE_KEYS = {"name", "kind", "measured", "branches", "damage_threshold"} | {
     p.name for k in STAGE_KINDS.values() for p in k.params}
 
@@ -76,8 +75,7 @@ class _Chain:
     def stage_context(self, notes: list) -> StageContext:
         from . import materials
 
-        shape = self.c.context(self.categorical.get("pulse_shape", "gaussian")
-                               if self.categorical.get("pulse_shape") in _SHAPES else "gaussian", "gaussian").shape
+        shape = PULSE_SHAPES.get(self.categorical.get("pulse_shape"), PULSE_SHAPES[DEFAULT_SHAPE])
         return StageContext(self.c.units.constants.c, shape.transform_limit,
                             lambda m, lam: float(materials.gvd(m, lam, self.c.units.constants.c)),
                             notes.append)
@@ -205,7 +203,7 @@ class _Chain:
             for text in notes:
                 self.report.add("stage-model", f"{name}: {text}", here, key=True)
             if kind.name == "parametric":
-                self.check_photon_energy(name, stage, beam, params, here)
+                self.check_photon_energy(name, incident, params, here)
             measured = stage.get("measured")
             if kind.name == "focus" and isinstance(measured, dict):
                 beam, measured = self.measured_spot(name, beam, measured, here, params)
@@ -265,8 +263,8 @@ class _Chain:
             self.walk(spec.get("path"), at + ("branches", branch, "path"), beam_from(cells, branch_beam, 0),
                       columns + [label], spec.get("target"), at + ("branches", branch, "target"))
 
-    def check_photon_energy(self, name, stage, beam, params, at) -> None:
-        pump = self.sheet_value_before(beam)
+    def check_photon_energy(self, name: str, incident: dict, params: dict, at: tuple) -> None:
+        pump = _value(incident["wavelength"]) if incident.get("wavelength") else None
         s, i = params.get("signal_wavelength"), params.get("idler_wavelength")
         if not (pump and s and i):
             return
@@ -280,11 +278,6 @@ class _Chain:
                             f"{name}: signal {s[1] * 1e9:.5g} nm and idler {i[1] * 1e9:.5g} nm need a pump at "
                             f"{implied * 1e9:.5g} nm (1/λp = 1/λs + 1/λi), but the pump is at "
                             f"{pump[1] * 1e9:.5g} nm", at + ("signal_wavelength",))
-
-    def sheet_value_before(self, beam):
-        last = list(self.sheet.values())[-1] if self.sheet else {}
-        cell = last.get("wavelength")
-        return _value(cell) if cell else None
 
     def measured_spot(self, name, beam, measured: dict, at, params):
         """A measured focus spot may be larger than the diffraction limit, never smaller."""
@@ -567,13 +560,7 @@ def _gdd_cell(v: tuple) -> Cell:
     return Cell("derived", v[0], v[2], v[1], "s^2", "fs^2")
 
 
-from .shapes import PULSE_SHAPES as _SHAPES  # noqa: E402
-
 
 def check_path(checker, data: dict, tolerance: float, report, sheet: dict) -> None:
     _Chain(checker, data, tolerance, report, sheet).run()
 
-
-def suggest_kind(kind: str) -> str:
-    guess = difflib.get_close_matches(kind, list(STAGE_KINDS), n=1)
-    return f"; did you mean {guess[0]!r}?" if guess else ""

@@ -1,14 +1,19 @@
 """The command line: ``run(argv, stdout, stderr) -> int`` and a thin ``main``.
 
-Exit codes: 0 no error-level finding; 1 at least one (with ``--strict``,
-warnings count too); 2 usage or I/O failure (a missing file).  Input files
-are only ever opened for reading.
+Exit codes: 0 no finding at the failing level; 1 at least one (errors by
+default; ``--strict`` or ``fail-on`` in the project configuration make
+warnings or notes count too); 2 usage or I/O failure (a missing file, a glob
+that matches nothing, a mistake in the configuration).  Input files are only
+ever opened for reading.
 """
 
 from __future__ import annotations
 
 import argparse
+import dataclasses
+import glob
 import os
+import re
 import sys
 from pathlib import Path
 
@@ -23,15 +28,26 @@ def _parser() -> argparse.ArgumentParser:
                                 "units, physics consistency, and every number that follows.")
     p.add_argument("--version", action="version", version=f"speccheck {__version__}")
     sub = p.add_subparsers(dest="command", metavar="COMMAND")
+    from .formats import FORMATS
+    from .starter import KINDS
+
     c = sub.add_parser("check", help="check spec files or folders of them")
-    c.add_argument("paths", nargs="+", metavar="PATH", help="a spec file, or a folder searched for *.yaml / *.yml")
-    c.add_argument("--format", default="human", choices=["human", "json", "review"],
+    c.add_argument("paths", nargs="+", metavar="PATH",
+                   help="a spec file, a folder searched for *.yaml / *.yml, or a quoted glob ('specs/**/*.yaml')")
+    c.add_argument("--format", default="human", choices=list(FORMATS),
                    help="output format (default human)")
     c.add_argument("--review", action="store_true",
                    help="a short review: consistent claims, impossible ones, numbers implied but not stated "
                    "(same as --format review)")
     c.add_argument("-o", "--output", metavar="FILE", help="write the report to FILE instead of standard output")
-    c.add_argument("--strict", action="store_true", help="exit 1 on warnings too")
+    c.add_argument("--strict", action="store_true", help="exit 1 on warnings too (same as --fail-on warning)")
+    c.add_argument("--fail-on", choices=["error", "warning", "note"],
+                   help="the lowest severity that makes the exit code 1 (default error, or the configuration's)")
+    where = c.add_mutually_exclusive_group()
+    where.add_argument("--config", metavar="FILE",
+                       help="read the project configuration from FILE (speccheck.toml, or a pyproject.toml "
+                       "with [tool.speccheck]) instead of searching for it")
+    where.add_argument("--no-config", action="store_true", help="ignore any project configuration")
     c.add_argument("--no-color", action="store_true", help="never colour the output (also: NO_COLOR=1)")
     c.add_argument("--color", action="store_true", help="colour the output even when it is not a terminal")
     c.add_argument("--no-sheet", action="store_true", help="human format: findings only, no sheet")
@@ -40,22 +56,75 @@ def _parser() -> argparse.ArgumentParser:
     e.add_argument("rule", metavar="RULE-ID")
     sub.add_parser("relations", help="list the relation table")
     sub.add_parser("schema", help="print the JSON Schema of the spec format")
+    n = sub.add_parser("new", help="write a commented starter spec that passes the check")
+    n.add_argument("--kind", default="oscillator", choices=list(KINDS), help="the kind of setup (default oscillator)")
+    n.add_argument("-o", "--output", metavar="FILE", help="write the spec to FILE instead of standard output")
+    n.add_argument("--force", action="store_true", help="replace FILE if it exists")
+    n.add_argument("--schema", metavar="PATH-OR-URL",
+                   help="add the editor modeline '# yaml-language-server: $schema=PATH-OR-URL'")
     return p
 
 
-def _spec_files(paths: list[str]) -> list[tuple[str, Path | None]]:
-    """Expand folders into their spec files (sorted, hidden folders skipped)."""
-    out: list[tuple[str, Path | None]] = []
+_GLOB = re.compile(r"[*?[]")
+
+
+@dataclasses.dataclass
+class _Expansion:
+    files: list[tuple[str, Path]]  # (name as shown, path), in order, each file once
+    unmatched: list[str]  # globs that matched no file
+    skipped: list[str]  # files named on the command line that the configuration leaves out
+    found: set[str] = dataclasses.field(default_factory=set)  # names found in a folder or by a glob
+
+    def __iter__(self):  # iterating gives the files, as the plain list of earlier versions did
+        return iter(self.files)
+
+    def __len__(self) -> int:
+        return len(self.files)
+
+
+def _walk(folder: Path, selector) -> list[Path]:
+    """Spec files under a folder, sorted; hidden and excluded folders are not entered."""
+    found = []
+    for root, dirs, files in os.walk(folder):
+        dirs[:] = sorted(d for d in dirs if not d.startswith(".")
+                         and not (selector and selector.excluded(os.path.join(root, d))))
+        found += [Path(root) / f for f in files if f.endswith(SPEC_SUFFIXES) and not f.startswith(".")
+                  and (selector is None or selector.selected(os.path.join(root, f)))]
+    return sorted(found)
+
+
+def _spec_files(paths: list[str], selector=None) -> _Expansion:
+    """Expand folders and globs into spec files: each argument in order, each expansion sorted."""
+    out = _Expansion([], [], [])
+    seen: set[str] = set()
+
+    def add(name: str, path: Path, found: bool = True) -> None:
+        key = os.path.normcase(os.path.abspath(name))
+        if key not in seen:
+            seen.add(key)
+            out.files.append((name, path))
+            if found:
+                out.found.add(name)
+
     for raw in paths:
         path = Path(raw)
-        if path.is_dir():
-            found = []
-            for root, dirs, files in os.walk(path):
-                dirs[:] = sorted(d for d in dirs if not d.startswith("."))
-                found += [Path(root) / f for f in files if f.endswith(SPEC_SUFFIXES) and not f.startswith(".")]
-            out += [(str(f), f) for f in sorted(found)]
+        if _GLOB.search(raw) and not os.path.lexists(raw):
+            matches = sorted(glob.glob(raw, recursive=True))
+            if not any(os.path.isdir(m) or m.endswith(SPEC_SUFFIXES) for m in matches):
+                out.unmatched.append(raw)
+            for match in matches:
+                if os.path.isdir(match):
+                    for f in _walk(Path(match), selector):
+                        add(str(f), f)
+                elif match.endswith(SPEC_SUFFIXES) and (selector is None or selector.selected(match)):
+                    add(match, Path(match))
+        elif path.is_dir():
+            for f in _walk(path, selector):
+                add(str(f), f)
+        elif selector is not None and os.path.lexists(raw) and not selector.selected(raw):
+            out.skipped.append(raw)
         else:
-            out.append((raw, path))
+            add(raw, path, found=False)  # named: read whatever it is (a pipe from the shell, too)
     return out
 
 
@@ -65,10 +134,22 @@ def read_beside(name: str, spec: str, max_bytes: int = 50 * 1024 * 1024) -> byte
     target = (folder / name).resolve()
     if Path(name).is_absolute() or not target.is_relative_to(folder):
         raise ValueError("data files must be given relative to the spec, inside its folder")
+    if not _regular(target):  # a named pipe or a device would block or never end
+        raise ValueError("not a regular file")
     if target.stat().st_size > max_bytes:
         raise ValueError(f"larger than {max_bytes} bytes")
     with open(target, "rb") as f:
         return f.read()
+
+
+def _regular(path: Path) -> bool:
+    import stat
+
+    return stat.S_ISREG(path.stat().st_mode)
+
+
+class _NotRegular(OSError):
+    strerror = "not a regular file (a pipe, socket or device found in a folder is not read)"
 
 
 def _read_failure(name: str, exc: OSError) -> FileResult:
@@ -79,45 +160,120 @@ def _read_failure(name: str, exc: OSError) -> FileResult:
     return FileResult(name, (finding,))
 
 
+def _config(args, stderr):
+    """The project configuration the arguments ask for; None after reporting a mistake in it."""
+    from . import config as cfg
+
+    if args.no_config:
+        return cfg.DEFAULT
+    try:
+        if args.config:
+            return cfg.load(Path(args.config))
+        try:
+            found = cfg.find(Path.cwd())
+        except OSError:  # the current folder is gone: there is nothing to find
+            return cfg.DEFAULT
+        return cfg.load(found) if found else cfg.DEFAULT
+    except cfg.ConfigError as exc:
+        stderr.write(f"speccheck: {exc}\n")
+        return None
+
+
+def _fail_level(args, config) -> str:
+    from .findings import SEVERITIES
+
+    if args.fail_on:
+        return args.fail_on
+    if args.strict:  # the stricter of --strict and the configuration
+        return SEVERITIES[max(SEVERITIES.index("warning"), SEVERITIES.index(config.fail_on))]
+    return config.fail_on
+
+
 def _check(args, stdout, stderr) -> int:
-    from .check import Checker
+    from . import config as cfg
+    from . import suppress
+    from .check import DEFAULT_TOLERANCE, Checker, Options
     from .formats import OutputOptions, writer
     from .units import UnitSystem
 
+    config = _config(args, stderr)
+    if config is None:
+        return 2
+    expansion = _spec_files(args.paths, cfg.Selector(config))
+    for pattern in expansion.unmatched:
+        stderr.write(f"speccheck: no spec file matches {pattern!r}\n")
+    for name in expansion.skipped:
+        stderr.write(f"speccheck: skipped {name}: left out by the include/exclude patterns of {config.path}\n")
+    if args.output and any(_same_file(args.output, path) for _, path in expansion.files):
+        stderr.write(f"speccheck: {args.output} is one of the specs being checked; input files are never "
+                     "written\n")
+        return 2
     units = UnitSystem()
-    checker = Checker(units, read=read_beside)
+    tolerance = config.tolerance if config.tolerance is not None else DEFAULT_TOLERANCE
+    checker = Checker(units, Options(default_tolerance=tolerance), read=read_beside)
     results: list[FileResult] = []
-    io_failure = False
-    for name, path in _spec_files(args.paths):
+    io_failure = bool(expansion.unmatched)
+    for name, path in expansion.files:
         try:
+            if name in expansion.found and not _regular(path):
+                raise _NotRegular()
             data = path.read_bytes()
         except OSError as exc:
             io_failure = True
             stderr.write(f"speccheck: cannot read {name}: {exc.strerror or exc}\n")
             results.append(_read_failure(name, exc))
             continue
-        results.append(checker.check_text(data, name))
+        result = checker.check_text(data, name)
+        findings = suppress.apply(data, result.findings, name)
+        results.append(result if findings is result.findings else dataclasses.replace(result, findings=findings))
+    results = cfg.apply(results, config)
+    fail_on = _fail_level(args, config)
     to_terminal = args.output is None and hasattr(stdout, "isatty") and stdout.isatty()
     color = (args.color or to_terminal) and not args.no_color and not os.environ.get("NO_COLOR")
-    options = OutputOptions(units=units, color=color, show_sheet=not args.no_sheet)
+    options = OutputOptions(units=units, color=color, show_sheet=not args.no_sheet, fail_on=fail_on)
     write = writer("review" if args.review else args.format)
     if args.output:
-        _write_atomically(Path(args.output), lambda out: write(results, out, options))
+        try:
+            _write_atomically(Path(args.output), lambda out: write(results, out, options))
+        except OSError as exc:
+            stderr.write(f"speccheck: cannot write {args.output}: {_reason(exc)}\n")
+            return 2
     else:
         write(results, stdout, options)
     if io_failure:
         return 2
-    failing = {"error", "warning"} if args.strict else {"error"}
-    return 1 if any(f.severity in failing for r in results for f in r.findings) else 0
+    return 1 if cfg.failing(results, fail_on) else 0
+
+
+def _same_file(a: str, b: Path) -> bool:
+    try:
+        return os.path.samefile(a, b)
+    except OSError:
+        return False
+
+
+def _reason(exc: OSError) -> str:
+    if isinstance(exc, IsADirectoryError):
+        return "is a directory"
+    return exc.strerror or type(exc).__name__
 
 
 def _write_atomically(target: Path, fill) -> None:
+    """Write through a temporary file in the same folder and a rename: readers never see half a file."""
+    import stat
     import tempfile
 
+    try:  # keep the permissions of the file replaced, or give a new one the usual ones
+        mode = stat.S_IMODE(target.stat().st_mode)
+    except OSError:
+        umask = os.umask(0)
+        os.umask(umask)
+        mode = 0o666 & ~umask
     fd, tmp = tempfile.mkstemp(prefix=f".{target.name}.", dir=target.parent or ".")
     try:
         with os.fdopen(fd, "w", encoding="utf-8", newline="\n") as out:
             fill(out)
+        os.chmod(tmp, mode)
         os.replace(tmp, target)
     except BaseException:
         Path(tmp).unlink(missing_ok=True)
@@ -131,6 +287,18 @@ def _rules(stdout) -> int:
     for r in RULES.values():
         stdout.write(f"{r.id:<{width}}  {r.severity:<7}  {r.summary}\n")
     return 0
+
+
+# Words that mark a parenthesis of a rule's explanation as naming where its numbers come from.
+_SOURCE_WORDS = re.compile(r"published|\bISO\b|\bIEC\b|\bANSI\b|CODATA|common practice|from memory|"
+                           r"et al\.|\b(?:1[89]|20)\d\d\b|handbook|tables?\b", re.I)
+
+
+def source_of(explanation: str) -> str | None:
+    """The source a rule's explanation names in parentheses ("(ISO 11146)"), if any."""
+    found = [m.group(1).strip() for m in re.finditer(r"\(([^()]*)\)", explanation)
+             if _SOURCE_WORDS.search(m.group(1))]
+    return "; ".join(dict.fromkeys(found)) or None
 
 
 def _explain(rule_id: str, stdout, stderr) -> int:
@@ -147,11 +315,39 @@ def _explain(rule_id: str, stdout, stderr) -> int:
         return 2
     stdout.write(f"{r.id} ({r.severity}): {r.summary}\n\n{r.explanation}\n")
     if r.id == "relation-conflict":
+        stdout.write("\nSource: each relation's own; `speccheck relations` lists them\n")
         stdout.write("\nRelations:\n" + "".join(f"  {x.id:<24} {x.formula}\n" for x in RELATIONS))
+    else:
+        source = source_of(r.explanation)
+        if source:
+            stdout.write(f"\nSource: {source}\n")
     if r.failing:
         stdout.write("\nFails:\n" + "".join(f"  {line}\n" for line in r.failing.splitlines()))
     if r.passing:
         stdout.write("\nPasses:\n" + "".join(f"  {line}\n" for line in r.passing.splitlines()))
+    return 0
+
+
+def _new(args, stdout, stderr) -> int:
+    from .starter import starter
+
+    if args.output is None:
+        stdout.write(starter(args.kind, "spec.yaml", args.schema))
+        return 0
+    target = Path(args.output)
+    if target.is_dir():
+        stderr.write(f"speccheck: {args.output} is a folder; name the file to write\n")
+        return 2
+    if os.path.lexists(target) and not args.force:
+        stderr.write(f"speccheck: {args.output} exists; use --force to replace it\n")
+        return 2
+    text = starter(args.kind, target.name, args.schema)
+    try:
+        _write_atomically(target, lambda out: out.write(text))
+    except OSError as exc:
+        stderr.write(f"speccheck: cannot write {args.output}: {_reason(exc)}\n")
+        return 2
+    stderr.write(f"speccheck: wrote {args.output} ({args.kind}); check it with `speccheck check {args.output}`\n")
     return 0
 
 
@@ -179,6 +375,8 @@ def run(argv: list[str], stdout=None, stderr=None) -> int:
         return _explain(args.rule, stdout, stderr)
     if args.command == "relations":
         return _relations(stdout)
+    if args.command == "new":
+        return _new(args, stdout, stderr)
     if args.command == "schema":
         from .schema import schema_text
 

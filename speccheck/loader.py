@@ -123,6 +123,9 @@ class _Builder:
         first: dict = {}
         for key_node, value_node in node.value:
             key = self._scalar(key_node) if isinstance(key_node, yaml.ScalarNode) else None
+            if not isinstance(key_node, yaml.ScalarNode) and key_node.tag not in (_MAP, _SEQ):
+                self.problem("unsupported-yaml-tag", f"tag {key_node.tag!r} is not allowed in a spec "
+                             "(speccheck never constructs objects from input)", key_node)
             if not isinstance(key, (str, int, float, bool)) or key is None:
                 self.problem("schema-violation", "a mapping key must be a plain word", key_node)
                 continue
@@ -163,6 +166,17 @@ class _Builder:
             return None
 
 
+def _count_nodes(text: str, max_nodes: int):
+    """The event of the first node past ``max_nodes`` (aliases not expanded), or None."""
+    count = 0
+    for event in yaml.parse(text, Loader=_Loader):
+        if isinstance(event, (yaml.ScalarEvent, yaml.AliasEvent, yaml.CollectionStartEvent)):
+            count += 1
+            if count > max_nodes:
+                return event
+    return None
+
+
 def load(text: str | bytes, limits: Limits = Limits()) -> Document:
     """Parse spec text into a ``Document``; problems are collected, never raised."""
     doc = Document()
@@ -178,6 +192,11 @@ def load(text: str | bytes, limits: Limits = Limits()) -> Document:
             doc.problems.append(Problem("yaml-syntax", f"the file is not UTF-8 text (byte {exc.start})", 1, 1))
             return doc
     try:
+        too_many = _count_nodes(text, limits.max_nodes)
+        if too_many is not None:  # composing would hold every node in memory first
+            doc.problems.append(Problem("input-limit", f"the document has more than {limits.max_nodes} "
+                                        "nodes; reading stopped", *_mark(too_many)))
+            return doc
         root = yaml.compose(text, Loader=_Loader)
     except yaml.MarkedYAMLError as exc:
         mark = exc.problem_mark or exc.context_mark

@@ -187,7 +187,9 @@ class ValueParser:
     def _to_si(self, key, number: float, unit: str | None, text: str, positive: bool = True):
         """Resolve the quantity by the unit's dimension and convert to SI."""
         base = key.split(".")[0]
-        names = self._extra.get(key) or self._extra.get(base) or ALIASES.get(base) or {BY_NAME[base].si_unit: base}
+        parent = key.rpartition(".")[0]  # "s1.gdd.min": a part of the {min, typical, max} of "s1.gdd"
+        names = (self._extra.get(key) or self._extra.get(parent) or self._extra.get(base) or ALIASES.get(base)
+                 or {BY_NAME[base].si_unit: base})
         if not math.isfinite(number):
             raise ValueProblem("non-finite-value", f"{key}: {text.strip()!r} is not a finite number")
         if not unit:

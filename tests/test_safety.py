@@ -34,3 +34,19 @@ def test_the_caution_shows_in_human_output():
     out = io.StringIO()
     run(["check", "--no-sheet", str(EXAMPLES / "oscillator-consistent.yaml")], stdout=out, stderr=io.StringIO())
     assert "laser-safety" in out.getvalue() and "IEC 60825-1" in " ".join(out.getvalue().split())
+
+
+def test_the_caution_cannot_be_disabled_lowered_or_suppressed(tmp_path, monkeypatch):
+    spec = tmp_path / "s.yaml"
+    spec.write_text("spec_version: 1\nlaser:  # speccheck: allow laser-safety -- we know\n  pulse_duration: 100 fs\n")
+    out = io.StringIO()
+    run(["check", "--no-config", "--format", "json", str(spec)], stdout=out, stderr=io.StringIO())
+    rules = [f["rule"] for f in __import__("json").loads(out.getvalue())["files"][0]["findings"]]
+    assert "laser-safety" in rules and "invalid-suppression" in rules
+    monkeypatch.chdir(tmp_path)
+    for config in ('[tool.speccheck]\ndisable = ["laser-safety"]\n',
+                   '[tool.speccheck.severity]\nlaser-safety = "error"\n'):
+        (tmp_path / "pyproject.toml").write_text(config)
+        err = io.StringIO()
+        assert run(["check", str(spec)], stdout=io.StringIO(), stderr=err) == 2
+        assert "laser-safety" in err.getvalue()

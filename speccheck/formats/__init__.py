@@ -13,6 +13,10 @@ FORMATS: dict[str, str] = {
     "human": "speccheck.formats.human",
     "json": "speccheck.formats.json_format",
     "review": "speccheck.formats.review",
+    "sarif": "speccheck.formats.sarif",
+    "junit": "speccheck.formats.junit",
+    "github": "speccheck.formats.github",
+    "csv": "speccheck.formats.csv_format",
 }
 
 
@@ -22,6 +26,7 @@ class OutputOptions:
     color: bool = False
     show_sheet: bool = True
     width: int | None = None
+    fail_on: str = "error"  # the lowest severity that fails the run (junit marks those as failures)
 
 
 def writer(name: str):

@@ -193,9 +193,12 @@ def _ln(x: float) -> float:
     return math.log(x) if math.isfinite(x) else math.inf
 
 
+_LN_MAX = math.log(1.7e308)  # beyond this a float overflows
+
+
 def _exp(y: float) -> float | None:
-    """Back from log space; None for an unbounded side."""
-    if not math.isfinite(y):
+    """Back from log space; None for an unbounded side (or one beyond what a float holds)."""
+    if not math.isfinite(y) or y > _LN_MAX:
         return None
     return math.exp(y)
 
@@ -449,7 +452,7 @@ class _BlockCheck:
         point = self.nominal(exclude or (var,)).get(var)
         value = None
         if point is not None and low is not None and high is not None:
-            value = min(max(math.exp(point), low), high)
+            value = min(max(_exp(point) or high, low), high)
         return self.show_interval(q, low, high, value), value if value is not None else _centre(low, high)
 
     def ratio_text(self, quantity: str, implied_centre: float | None) -> str:
@@ -560,8 +563,12 @@ class _BlockCheck:
                 low, high = _exp(d.state.lo[i]), _exp(d.state.hi[i])
                 value = _centre(low, high)
                 if i in nominal:
-                    value = min(max(math.exp(nominal[i]), low or 0.0), high or math.inf)
-                unit = choose_unit(self.c.units, value, quantity.display_unit)
+                    value = min(max(_exp(nominal[i]) or math.inf, low or 0.0), high or math.inf)
+                    value = value if math.isfinite(value) else None
+                if value is None and low is None and high is None:
+                    continue  # beyond what a float holds: nothing to show
+                ref = value if value is not None else (low if low is not None else high)
+                unit = choose_unit(self.c.units, ref, quantity.display_unit)
                 out[q] = Cell("derived", low, high, value, quantity.si_unit, unit)
         for q, value in DEFAULTS.items():
             used = any(q in BY_ID[r].quantities() for c in out for r in d.state.via(self.net.index[c]))

@@ -32,6 +32,9 @@ _BOUND_SIDE = {">=": "low", "≥": "low", "=>": "low", ">": "low",
 _SPACES = str.maketrans({"\u00a0": " ", "\u2009": " ", "\u202f": " ", "\u2212": "-", "\t": " "})
 
 MAX_VALUE_LENGTH = 200
+# Magnitudes (in SI units) a stated value may have: far wider than any laboratory needs, and
+# narrow enough that products of a few of them stay inside the range of a float.
+SI_RANGE = (1e-100, 1e100)
 
 
 class ValueProblem(ValueError):
@@ -215,6 +218,9 @@ class ValueParser:
         si = number * parsed.factor
         if not math.isfinite(si):
             raise ValueProblem("non-finite-value", f"{key}: {text.strip()!r} overflows in SI units")
+        if si != 0.0 and not SI_RANGE[0] <= abs(si) <= SI_RANGE[1]:
+            raise ValueProblem("invalid-value", f"{key}: {text.strip()!r} is outside the range speccheck "
+                               f"handles ({SI_RANGE[0]:g} to {SI_RANGE[1]:g} in SI units)")
         return names[parsed.dimension], si, parsed.text
 
 

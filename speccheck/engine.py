@@ -53,15 +53,31 @@ def compile_network(names: tuple[str, ...], context: Context,
     return Network(tuple(names), index, tuple(compiled), tuple(tuple(t) for t in touching))
 
 
+def _members(mask: int) -> frozenset:
+    """The set bits of an integer, as a frozenset of indices."""
+    out = []
+    i = 0
+    while mask:
+        if mask & 1:
+            out.append(i)
+        mask >>= 1
+        i += 1
+    return frozenset(out)
+
+
 @dataclass
 class State:
-    """Intervals of ln q after propagation, each bound with its support."""
+    """Intervals of ln q after propagation, each bound with its support.
 
+    Supports are bit masks inside (bit i: stated var i; for ``via``, bit r: relation r), which
+    keeps the inner loop on plain integers; the accessors return frozensets."""
+
+    net: Network
     lo: list
     hi: list
-    lo_support: list  # frozenset of stated var indices
+    lo_support: list  # bit mask of stated var indices
     hi_support: list
-    lo_via: list  # frozenset of relation ids
+    lo_via: list  # bit mask of relation indices
     hi_via: list
     conflict: tuple | None = None  # (var, support, via) when an interval became empty
 
@@ -70,10 +86,10 @@ class State:
         return self.conflict is None
 
     def support(self, i: int) -> frozenset:
-        return self.lo_support[i] | self.hi_support[i]
+        return _members(self.lo_support[i] | self.hi_support[i])
 
     def via(self, i: int) -> frozenset:
-        return self.lo_via[i] | self.hi_via[i]
+        return frozenset(self.net.relations[r][0].id for r in _members(self.lo_via[i] | self.hi_via[i]))
 
     def known(self, i: int) -> bool:
         return self.lo[i] > -math.inf or self.hi[i] < math.inf
@@ -84,36 +100,44 @@ def propagate(net: Network, stated: dict) -> State:
     n = len(net.names)
     inf = math.inf
     lo, hi = [-inf] * n, [inf] * n
-    lo_s, hi_s = [EMPTY] * n, [EMPTY] * n
-    lo_v, hi_v = [EMPTY] * n, [EMPTY] * n
+    lo_s, hi_s = [0] * n, [0] * n
+    lo_v, hi_v = [0] * n, [0] * n
     for i, (a, b) in stated.items():
         lo[i], hi[i] = a, b
-        lo_s[i] = hi_s[i] = frozenset((i,))
-    state = State(lo, hi, lo_s, hi_s, lo_v, hi_v)
-    queue = deque(range(len(net.relations)))
-    queued = [True] * len(net.relations)
+        lo_s[i] = hi_s[i] = 1 << i
+    state = State(net, lo, hi, lo_s, hi_s, lo_v, hi_v)
+    relations = net.relations
+    touching = net.touching
+    queue = deque(range(len(relations)))
+    queued = [True] * len(relations)
     steps = 0
     while queue and steps < _MAX_STEPS:
         r = queue.popleft()
         queued[r] = False
-        rel, terms, ln_k = net.relations[r]
+        _, terms, ln_k = relations[r]
+        bit = 1 << r
         for j, ej in terms:
             steps += 1
             # Σ_{k≠j} e_k y_k as an interval [s_lo, s_hi], with the supports of each end.
             s_lo = s_hi = 0.0
-            sup_lo = sup_hi = EMPTY
-            via_lo = via_hi = EMPTY
+            sup_lo = sup_hi = via_lo = via_hi = 0
             for k, ek in terms:
                 if k == j:
                     continue
                 if ek > 0:
-                    s_lo += ek * lo[k]; s_hi += ek * hi[k]
-                    sup_lo |= lo_s[k]; sup_hi |= hi_s[k]
-                    via_lo |= lo_v[k]; via_hi |= hi_v[k]
+                    s_lo += ek * lo[k]
+                    s_hi += ek * hi[k]
+                    sup_lo |= lo_s[k]
+                    sup_hi |= hi_s[k]
+                    via_lo |= lo_v[k]
+                    via_hi |= hi_v[k]
                 else:
-                    s_lo += ek * hi[k]; s_hi += ek * lo[k]
-                    sup_lo |= hi_s[k]; sup_hi |= lo_s[k]
-                    via_lo |= hi_v[k]; via_hi |= lo_v[k]
+                    s_lo += ek * hi[k]
+                    s_hi += ek * lo[k]
+                    sup_lo |= hi_s[k]
+                    sup_hi |= lo_s[k]
+                    via_lo |= hi_v[k]
+                    via_hi |= lo_v[k]
             if ej > 0:
                 new_lo, new_hi = (ln_k - s_hi) / ej, (ln_k - s_lo) / ej
                 nlo_s, nhi_s, nlo_v, nhi_v = sup_hi, sup_lo, via_hi, via_lo
@@ -122,16 +146,16 @@ def propagate(net: Network, stated: dict) -> State:
                 nlo_s, nhi_s, nlo_v, nhi_v = sup_lo, sup_hi, via_lo, via_hi
             changed = False
             if new_lo > lo[j] + _TIGHTEN:
-                lo[j], lo_s[j], lo_v[j] = new_lo, nlo_s, nlo_v | {rel.id}
+                lo[j], lo_s[j], lo_v[j] = new_lo, nlo_s, nlo_v | bit
                 changed = True
             if new_hi < hi[j] - _TIGHTEN:
-                hi[j], hi_s[j], hi_v[j] = new_hi, nhi_s, nhi_v | {rel.id}
+                hi[j], hi_s[j], hi_v[j] = new_hi, nhi_s, nhi_v | bit
                 changed = True
             if changed:
                 if lo[j] > hi[j] + _EMPTY:
-                    state.conflict = (j, lo_s[j] | hi_s[j], lo_v[j] | hi_v[j])
+                    state.conflict = (j, _members(lo_s[j] | hi_s[j]), lo_v[j] | hi_v[j])
                     return state
-                for other in net.touching[j]:
+                for other in touching[j]:
                     if not queued[other]:
                         queued[other] = True
                         queue.append(other)

@@ -31,6 +31,13 @@ def schema() -> dict:
 
 
 @lru_cache(maxsize=1)
+def _fast():
+    from .fastschema import compile_schema
+
+    return compile_schema(schema())
+
+
+@lru_cache(maxsize=1)
 def _validator():
     from jsonschema import Draft202012Validator
 
@@ -62,6 +69,8 @@ def _subschema(path) -> dict:
 
 def validate(data) -> list[tuple[str, tuple, str, bool]]:
     """Schema problems as (rule, path, message, at_key), in document order."""
+    if _fast()(data):
+        return []  # the common case, without importing jsonschema
     from jsonschema.exceptions import relevance
 
     problems = []

@@ -240,6 +240,7 @@ def _check(args, stdout, stderr) -> int:
             return 2
     else:
         write(results, stdout, options)
+    units.save()  # remember pint's answers for the next run
     if io_failure:
         return 2
     return 1 if cfg.failing(results, fail_on) else 0

@@ -45,6 +45,29 @@ _SUPERSCRIPTS = str.maketrans({"²": "^2", "³": "^3", "¹": "^1", "·": "*", "�
 _SUPER_MINUS = re.compile(r"⁻\^?(\d)")
 
 
+_CONSTANTS = {"c": "speed_of_light", "h": "planck_constant", "eps0": "vacuum_permittivity",
+              "e": "elementary_charge", "m_e": "electron_mass"}
+MAX_TABLE = 2000  # unit texts remembered on disk
+
+
+def _table_path():
+    """Where the table of pint's answers lives, or None when it is turned off."""
+    import os
+    from pathlib import Path
+
+    if os.environ.get("SPECCHECK_NO_CACHE"):
+        return None
+    try:
+        from importlib.metadata import version
+
+        pint_version = version("pint")
+    except Exception:
+        return None
+    base = os.environ.get("SPECCHECK_CACHE_DIR") or os.path.join(
+        os.environ.get("XDG_CACHE_HOME") or os.path.join(os.path.expanduser("~"), ".cache"), "speccheck")
+    return Path(base) / f"units-{pint_version}.json"
+
+
 class UnitError(ValueError):
     """A unit string that is not a usable unit; the message says why."""
 
@@ -91,27 +114,82 @@ def screen_unit_text(text: str) -> None:
 
 
 class UnitSystem:
-    """One pint registry and the caches built on it."""
+    """One pint registry per process and the caches built on it.
 
-    def __init__(self, registry=None, cache_folder: str | None = ":auto:") -> None:
-        if registry is None:
+    pint is imported only when it is needed.  What it answered (the CODATA constants, and
+    each unit text's factor and dimension) is kept in a small table on disk
+    (``units-<pint version>.json`` in the user's cache folder; ``SPECCHECK_CACHE_DIR`` moves
+    it, ``SPECCHECK_NO_CACHE=1`` turns it off), so a later run that meets only known units
+    never imports pint.  The values in that table are pint's, never typed in.
+    """
+
+    def __init__(self, registry=None, cache_folder: str | None = ":auto:", table: bool = True) -> None:
+        self._registry = registry
+        self._cache_folder = cache_folder
+        self._table_path = _table_path() if table and registry is None else None
+        self._table: dict = {}
+        self._constants: dict | None = None
+        self._dirty = False
+        if self._table_path is not None:
+            self._load_table()
+        self.parse = lru_cache(maxsize=4096)(self._parse)
+        if self._constants is None:
+            q = self.registry.Quantity
+            self._constants = {name: float(q(1, pint_name).to_base_units().magnitude)
+                               for name, pint_name in _CONSTANTS.items()}
+            self._dirty = True
+        self.constants = Constants(**self._constants)
+
+    @property
+    def registry(self):
+        if self._registry is None:
             import pint
 
             try:
-                registry = pint.UnitRegistry(cache_folder=cache_folder)
+                self._registry = pint.UnitRegistry(cache_folder=self._cache_folder)
             except Exception:  # an unwritable cache folder must not stop a check
-                registry = pint.UnitRegistry()
-        self.registry = registry
-        self._dimensions = {self._dimensionality(key): key for key in DIMENSION_NAMES}
-        self.parse = lru_cache(maxsize=4096)(self._parse)
-        q = registry.Quantity
-        self.constants = Constants(
-            c=q(1, "speed_of_light").to_base_units().magnitude,
-            h=q(1, "planck_constant").to_base_units().magnitude,
-            eps0=q(1, "vacuum_permittivity").to_base_units().magnitude,
-            e=q(1, "elementary_charge").to_base_units().magnitude,
-            m_e=q(1, "electron_mass").to_base_units().magnitude,
-        )
+                self._registry = pint.UnitRegistry()
+        return self._registry
+
+    @property
+    def _dimensions(self) -> dict:
+        if not hasattr(self, "_dimension_keys"):
+            self._dimension_keys = {self._dimensionality(key): key for key in DIMENSION_NAMES}
+        return self._dimension_keys
+
+    # ------------------------------------------------------------ the table on disk
+    def _load_table(self) -> None:
+        import json
+
+        try:
+            data = json.loads(self._table_path.read_text("utf-8"))
+            constants = {k: float(data["constants"][k]) for k in _CONSTANTS}
+            table = {str(k): Unit(str(v[0]), float(v[1]), v[2] if v[2] is None else str(v[2]), str(v[3]))
+                     for k, v in data["units"].items()}
+        except (OSError, ValueError, KeyError, TypeError, IndexError):
+            return  # no table yet, or a damaged one: pint answers and the table is written anew
+        self._constants, self._table = constants, table
+
+    def save(self) -> None:
+        """Write what pint answered this run to the table (atomically; failures are ignored)."""
+        if not self._dirty or self._table_path is None:
+            return
+        import json
+        import os
+        import tempfile
+
+        data = {"constants": self._constants,
+                "units": {k: [u.text, u.factor, u.dimension, u.dimensionality]
+                          for k, u in sorted(self._table.items())[:MAX_TABLE]}}
+        try:
+            self._table_path.parent.mkdir(parents=True, exist_ok=True)
+            fd, tmp = tempfile.mkstemp(dir=self._table_path.parent, prefix=".units.")
+            with os.fdopen(fd, "w", encoding="utf-8") as out:
+                json.dump(data, out, ensure_ascii=False)
+            os.replace(tmp, self._table_path)
+            self._dirty = False
+        except OSError:
+            pass
 
     def _dimensionality(self, text: str):
         if text == "1":
@@ -123,6 +201,9 @@ class UnitSystem:
         shown = normalise_unit_text(text)
         if shown in ("%", "percent"):
             return Unit("%", 0.01, "1", "dimensionless")
+        known = self._table.get(shown)
+        if known is not None:
+            return known
         screen_unit_text(shown)
         try:
             units = self.registry.parse_units(shown.replace("^", "**"))
@@ -135,7 +216,11 @@ class UnitSystem:
         dims = frozenset(quantity.dimensionality.items())
         dimension = self._dimensions.get(dims)
         described = str(quantity.dimensionality) or "dimensionless"
-        return Unit(shown, factor, dimension, described)
+        unit = Unit(shown, factor, dimension, described)
+        if len(self._table) < MAX_TABLE:
+            self._table[shown] = unit
+            self._dirty = True
+        return unit
 
     def factor(self, text: str) -> float:
         return self.parse(text).factor

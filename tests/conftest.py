@@ -13,7 +13,8 @@ from speccheck.units import UnitSystem
 
 @pytest.fixture(scope="session")
 def units() -> UnitSystem:
-    return UnitSystem()
+    # No table on disk: every unit and constant here comes from pint itself.
+    return UnitSystem(table=False)
 
 
 @pytest.fixture(scope="session")

@@ -37,6 +37,8 @@ class Network:
     index: dict
     relations: tuple[tuple[Relation, tuple[tuple[int, float], ...], float], ...]
     touching: tuple[tuple[int, ...], ...]  # var -> relations it takes part in
+    # per relation, per unknown j: (j, e_j, ((k, e_k) for the other terms))
+    solved: tuple = ()
 
 
 def compile_network(names: tuple[str, ...], context: Context,
@@ -50,7 +52,9 @@ def compile_network(names: tuple[str, ...], context: Context,
     for r, (_, terms, _) in enumerate(compiled):
         for i, _ in terms:
             touching[i].append(r)
-    return Network(tuple(names), index, tuple(compiled), tuple(tuple(t) for t in touching))
+    solved = tuple(tuple((j, ej, tuple((k, ek) for k, ek in terms if k != j)) for j, ej in terms)
+                   for _, terms, _ in compiled)
+    return Network(tuple(names), index, tuple(compiled), tuple(tuple(t) for t in touching), solved)
 
 
 def _members(mask: int) -> frozenset:
@@ -91,6 +95,13 @@ class State:
     def via(self, i: int) -> frozenset:
         return frozenset(self.net.relations[r][0].id for r in _members(self.lo_via[i] | self.hi_via[i]))
 
+    def via_any(self, indices) -> frozenset:
+        """The relations any of these quantities was derived through."""
+        mask = 0
+        for i in indices:
+            mask |= self.lo_via[i] | self.hi_via[i]
+        return frozenset(self.net.relations[r][0].id for r in _members(mask))
+
     def known(self, i: int) -> bool:
         return self.lo[i] > -math.inf or self.hi[i] < math.inf
 
@@ -108,22 +119,21 @@ def propagate(net: Network, stated: dict) -> State:
     state = State(net, lo, hi, lo_s, hi_s, lo_v, hi_v)
     relations = net.relations
     touching = net.touching
+    solved = net.solved
     queue = deque(range(len(relations)))
     queued = [True] * len(relations)
     steps = 0
     while queue and steps < _MAX_STEPS:
         r = queue.popleft()
         queued[r] = False
-        _, terms, ln_k = relations[r]
+        ln_k = relations[r][2]
         bit = 1 << r
-        for j, ej in terms:
+        for j, ej, others in solved[r]:
             steps += 1
             # Σ_{k≠j} e_k y_k as an interval [s_lo, s_hi], with the supports of each end.
             s_lo = s_hi = 0.0
             sup_lo = sup_hi = via_lo = via_hi = 0
-            for k, ek in terms:
-                if k == j:
-                    continue
+            for k, ek in others:
                 if ek > 0:
                     s_lo += ek * lo[k]
                     s_hi += ek * hi[k]

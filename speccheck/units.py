@@ -275,6 +275,15 @@ def choose_unit(units: UnitSystem, si_value: float, display_unit: str, keep: boo
     number; with ``keep`` (a unit the user chose) it is kept while the number reads well."""
     if display_unit in _FIXED or not math.isfinite(si_value) or si_value == 0:
         return display_unit
+    # The choice depends only on the number's order of magnitude (and its first digits near
+    # a boundary): cache it by the value rounded to three significant digits.
+    return _choose_unit(units, float(f"{si_value:.3g}"), display_unit, keep)
+
+
+@lru_cache(maxsize=8192)
+def _choose_unit(units: UnitSystem, si_value: float, display_unit: str, keep: bool) -> str:
+    if display_unit in _FIXED or not math.isfinite(si_value) or si_value == 0:
+        return display_unit
     base = display_unit
     for _, p in _PREFIXES + ((1e-6, "u"),):
         if p and display_unit.startswith(p) and display_unit[len(p):] in _PREFIXABLE:

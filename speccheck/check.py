@@ -198,8 +198,8 @@ _LN_MAX = math.log(1.7e308)  # beyond this a float overflows
 
 def _exp(y: float) -> float | None:
     """Back from log space; None for an unbounded side (or one beyond what a float holds)."""
-    if not math.isfinite(y) or y > _LN_MAX:
-        return None
+    if not math.isfinite(y) or abs(y) > _LN_MAX:
+        return None  # a float cannot hold it (inf, or an underflow to 0 that would divide by zero)
     return math.exp(y)
 
 
@@ -249,7 +249,7 @@ class _BlockCheck:
         if low is not None and high is not None:
             value = value if value is not None else math.sqrt(low * high)
             unit = self.unit_for(quantity, value)
-            if high / low < 1.0 + 1e-9:
+            if high <= low * (1.0 + 1e-9):
                 return self.show(quantity, value, unit)
             return (f"{self.show(quantity, value, unit)} "
                     f"({self.show(quantity, low, unit)} … {self.show(quantity, high, unit)})")
@@ -461,6 +461,8 @@ class _BlockCheck:
         if not mine or not implied_centre:
             return ""
         r = mine / implied_centre
+        if not (r > 0 and math.isfinite(r) and math.isfinite(1 / r)):
+            return ""
         return f" The stated value is {_format_ratio(r)} the implied one."
 
     def causes(self, var: int, state: State) -> list:

@@ -16,6 +16,7 @@ from importlib import resources
 from pathlib import Path
 
 SCHEMA_FILE = "spec-v1.schema.json"
+MAX_UNKNOWN_KEYS = 50  # "did you mean" for each of at most this many unknown keys in one mapping
 
 
 def schema_text() -> str:
@@ -78,7 +79,13 @@ def validate(data) -> list[tuple[str, tuple, str, bool]]:
         path = tuple(error.absolute_path)
         if error.validator in ("additionalProperties", "unevaluatedProperties") and isinstance(error.instance, dict):
             known = sorted(_subschema(path).get("properties", {}))
-            for key in sorted(set(error.instance) - set(known), key=str):
+            unknown = sorted(set(error.instance) - set(known), key=str)
+            if len(unknown) > MAX_UNKNOWN_KEYS:
+                where = ".".join(map(str, path)) or "the top level"
+                problems.append(("unknown-key", path, f"{len(unknown)} unknown keys in {where} (the first "
+                                 f"{MAX_UNKNOWN_KEYS} are reported one by one)", False))
+                unknown = unknown[:MAX_UNKNOWN_KEYS]
+            for key in unknown:
                 where = ".".join(map(str, path)) or "the top level"
                 guess = difflib.get_close_matches(str(key), known, n=1, cutoff=0.6)
                 hint = f"; did you mean {guess[0]!r}?" if guess else f"; known keys: {', '.join(known)}"

@@ -145,6 +145,10 @@ class ValueParser:
                 parsed[name] = self.parse(f"{key}.{name}", raw[name], 0.0)
         if not parsed:
             raise ValueProblem("invalid-value", f"{key}: give at least one of min, typical, max")
+        for name, part in parsed.items():
+            if part.typical is None:  # a bound (">= 20 W") or a nested mapping has no single number
+                raise ValueProblem("invalid-value", f"{key}.{name}: expected a plain value like '20 W', "
+                                   f"got {part.text!r}")
         quantities = {s.quantity for s in parsed.values()}
         if len(quantities) > 1:
             raise ValueProblem("wrong-dimension", f"{key}: min, typical and max must have the same dimension")

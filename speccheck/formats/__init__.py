@@ -17,6 +17,7 @@ FORMATS: dict[str, str] = {
     "junit": "speccheck.formats.junit",
     "github": "speccheck.formats.github",
     "csv": "speccheck.formats.csv_format",
+    "html": "speccheck.formats.html",
 }
 
 

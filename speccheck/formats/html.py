@@ -1,0 +1,512 @@
+"""``--format html``: one self-contained HTML page for a reviewer.
+
+Per file: the title and path, the findings (``file:line:col``, severity, rule,
+message, and the rule's explanation in a ``<details>`` block), the sheet as a
+grid (rows are quantities, columns the laser and each operating point or
+stage; stated, derived and conflict cells differ in colour *and* carry a text
+mark), and plots: the temporal intensity profile of the pulse, its spectrum
+and the beam radius around each focus.  A laser-safety caution stands at the
+top whenever a file has a ``laser-safety`` finding.
+
+Self-contained: inline CSS and inline SVG, no scripts, fonts, images or
+links to anything outside the page, and a Content-Security-Policy that forbids
+the browser to fetch anything.  Every text that comes from a spec (titles,
+paths, names, messages) is escaped.  Same input, same bytes out.
+
+The plots need matplotlib (the ``report`` extra), imported only here and only
+when a report is written (``formats/plots.py``).  Without it the page is
+written all the same and says how to get the plots.
+
+What the sheet does not hold — the laser block's ``pulse_shape`` and which
+column ends each branch of a splitter — is read from the spec file itself when
+it can be (a regular file at the path of the result, read with the checker's
+own loader and limits); otherwise the shape is recognised from the sheet's
+autocorrelation or peak-power factor and the last column stands for the end
+of the path.
+"""
+
+from __future__ import annotations
+
+import importlib
+import math
+from html import escape
+from pathlib import Path
+from typing import Callable
+
+from .. import __version__
+from ..findings import Cell, FileResult, Finding, SEVERITIES
+from ..shapes import DEFAULT_SHAPE, PULSE_SHAPES
+from ..units import choose_unit, format_number, format_quantity, pretty_unit
+
+INSTALL_HINT = "pip install 'speccheck[report]'"
+MAX_CURVES = 8  # curves in one plot (a path with many branches shows its first ones)
+MAX_FOCI = 6
+_STATUS_MARK = {"stated": "", "derived": "=", "conflict": "!"}
+_CSP = "default-src 'none'; style-src 'unsafe-inline'; img-src data:; base-uri 'none'; form-action 'none'"
+
+_CSS = """
+:root{--ink:#18181b;--muted:#52525b;--line:#d4d4d8;--panel:#fafafa;
+--err:#991b1b;--err-bg:#fee2e2;--warn:#854d0e;--warn-bg:#fef3c7;--note:#1e3a8a;--note-bg:#dbeafe;
+--derived:#1e3a8a;--derived-bg:#eff6ff;--conflict:#991b1b;--conflict-bg:#fee2e2}
+*{box-sizing:border-box}
+body{margin:0;padding:1.5rem clamp(1rem,3vw,2.5rem);color:var(--ink);background:#fff;
+font:15px/1.5 system-ui,-apple-system,"Segoe UI",Roboto,"Helvetica Neue",Arial,sans-serif}
+h1{font-size:1.6rem;margin:0 0 .25rem}h2{font-size:1.3rem;margin:0 0 .2rem}
+h3{font-size:1.05rem;margin:1.4rem 0 .5rem;border-bottom:1px solid var(--line);padding-bottom:.2rem}
+code,.mono{font-family:ui-monospace,"SFMono-Regular",Menlo,Consolas,"DejaVu Sans Mono",monospace;font-size:.9em}
+.summary{color:var(--muted);margin:.2rem 0 1rem}
+.vh{position:absolute!important;width:1px;height:1px;overflow:hidden;clip:rect(0 0 0 0);white-space:nowrap}
+.caution{border:3px solid #b45309;background:#fffbeb;border-radius:6px;padding:.8rem 1rem;margin:0 0 1.2rem}
+.caution h2{color:#92400e;font-size:1.15rem}
+.caution p{margin:.35rem 0}
+.notice{border-left:4px solid var(--muted);background:var(--panel);padding:.5rem .8rem;margin:0 0 1rem}
+nav ol{margin:.2rem 0 1rem;padding-left:1.4rem}
+.file{border-top:2px solid var(--ink);padding-top:1rem;margin-top:1.5rem}
+.path{margin:0;color:var(--muted)}
+.counts{margin:.2rem 0 0;color:var(--muted)}
+ol.findings{list-style:none;padding:0;margin:0}
+.finding{border:1px solid var(--line);border-left-width:5px;border-radius:4px;padding:.45rem .7rem;margin:.45rem 0}
+.finding.error{border-left-color:var(--err)}.finding.warning{border-left-color:#ca8a04}
+.finding.note{border-left-color:#3b82f6}
+.finding .head{display:flex;flex-wrap:wrap;gap:.5rem;align-items:baseline}
+.badge{font-weight:700;font-size:.8rem;text-transform:uppercase;letter-spacing:.03em;padding:.05rem .45rem;border-radius:3px}
+.badge.error{color:var(--err);background:var(--err-bg)}.badge.warning{color:var(--warn);background:var(--warn-bg)}
+.badge.note{color:var(--note);background:var(--note-bg)}
+.rule{font-weight:600}
+.msg{margin:.3rem 0}
+.meta{margin:.2rem 0;color:var(--muted);font-size:.9rem}
+details{margin:.25rem 0 0;font-size:.92rem}
+details summary{cursor:pointer;color:var(--muted)}
+details p{margin:.35rem 0}
+details pre{background:var(--panel);border:1px solid var(--line);padding:.4rem .6rem;margin:.2rem 0;overflow-x:auto}
+.legend{font-size:.9rem;color:var(--muted);margin:.2rem 0 .5rem}
+.legend>span{display:inline-block;padding:0 .4rem;margin-right:.4rem;border:1px solid var(--line);border-radius:3px}
+.scroll{overflow-x:auto;max-width:100%;border:1px solid var(--line);border-radius:4px}
+table.sheet{border-collapse:collapse;font-size:.84rem;font-variant-numeric:tabular-nums}
+table.sheet caption{text-align:left;padding:.3rem .5rem;color:var(--muted);caption-side:top}
+table.sheet th,table.sheet td{border-bottom:1px solid #e4e4e7;padding:.2rem .55rem;text-align:right;white-space:nowrap;vertical-align:top}
+table.sheet thead th{position:sticky;top:0;background:#f4f4f5;border-bottom:2px solid var(--line);text-align:right}
+table.sheet th[scope=row]{text-align:left;font-weight:600;background:#fff;position:sticky;left:0}
+table.sheet thead th:first-child{text-align:left;left:0;z-index:1}
+.c-stated{font-weight:600}
+.c-derived{color:var(--derived);background:var(--derived-bg)}
+.c-conflict{color:var(--conflict);background:var(--conflict-bg);font-weight:700;outline:2px solid var(--conflict);outline-offset:-2px}
+.mark{display:inline-block;min-width:.8em;font-weight:700;margin-right:.15rem}
+.implied{display:block;font-weight:400;font-size:.8rem}
+.assumed{font-weight:400;font-style:italic;color:var(--muted)}
+figure{margin:.6rem 0 1rem}
+figure svg{display:block;width:100%;max-width:52rem;height:auto}
+figcaption{font-size:.88rem;color:var(--muted);margin-top:.2rem}
+footer{margin-top:2rem;color:var(--muted);font-size:.85rem;border-top:1px solid var(--line);padding-top:.5rem}
+@media print{.scroll{overflow:visible;border:0}details{display:block}body{padding:0}}
+"""
+
+
+# ---------------------------------------------------------------- numbers
+class _Show:
+    def __init__(self, units) -> None:
+        self.units = units
+
+    def __call__(self, si: float | None, unit: str) -> str:
+        if si is None:
+            return "—"
+        try:
+            return format_quantity(self.units, si, unit)
+        except Exception:  # a display unit pint cannot read: show the SI number instead
+            return format_number(si)
+
+    def bare(self, si: float, unit: str) -> str:
+        try:
+            return format_number(si / self.units.factor(unit)) if unit != "1" else format_number(si)
+        except Exception:
+            return format_number(si)
+
+    def span(self, low, high, unit: str) -> str:
+        if low is not None and high is not None:
+            text = f"{self.bare(low, unit)} … {self.bare(high, unit)}"
+        elif low is not None:
+            text = f"≥ {self.bare(low, unit)}"
+        elif high is not None:
+            text = f"≤ {self.bare(high, unit)}"
+        else:
+            return "unbounded"
+        return text if unit == "1" else f"{text} {pretty_unit(unit)}"
+
+    def prefixed(self, si: float, unit: str) -> str:
+        try:
+            return choose_unit(self.units, si, unit)
+        except Exception:
+            return unit
+
+
+def _cell_main(cell: Cell, show: _Show) -> str:
+    unit = cell.display_unit or cell.unit
+    if cell.status in ("stated", "conflict") and cell.text:
+        return cell.text
+    if cell.value is not None:
+        return show(cell.value, unit)
+    return show.span(cell.low, cell.high, unit)
+
+
+def _cell_title(cell: Cell, show: _Show) -> str:
+    unit = cell.display_unit or cell.unit
+    parts = [cell.status + (" (default value)" if cell.assumed else "")]
+    if (cell.low is not None or cell.high is not None) and not (
+            cell.low is not None and cell.high is not None and cell.low > 0 and cell.high / cell.low <= 1 + 1e-9):
+        ref = cell.value or cell.low or cell.high
+        parts.append("interval " + show.span(cell.low, cell.high, show.prefixed(ref, unit) if ref else unit))
+    return "; ".join(parts)
+
+
+def _implied(cell: Cell, show: _Show) -> str:
+    ref = cell.implied_low if cell.implied_low is not None else cell.implied_high
+    if ref is None:
+        return ""
+    unit = show.prefixed(ref, cell.display_unit or cell.unit)
+    return "≠ implied " + show.span(cell.implied_low, cell.implied_high, unit)
+
+
+# ------------------------------------------------------- what the sheet lacks
+def _read_spec(path: str) -> dict | None:
+    """The spec's data, read again with the checker's own loader and limits, or None."""
+    try:
+        from ..loader import Limits, load
+
+        file = Path(path)
+        if not file.is_file() or file.stat().st_size > Limits().max_bytes:
+            return None
+        data = load(file.read_bytes()).data
+        return data if isinstance(data, dict) else None
+    except Exception:  # whatever the file is now, the report goes on without it
+        return None
+
+
+def _shape_from_sheet(laser: dict) -> str | None:
+    """The pulse shape whose autocorrelation (or peak-power) factor the laser column shows."""
+    def value(q):
+        c = laser.get(q)
+        return c.value if c is not None and c.value and math.isfinite(c.value) else None
+
+    tau, ac, energy, peak = (value(q) for q in ("pulse_duration", "autocorrelation_width", "pulse_energy",
+                                                 "peak_power"))
+    for ratio, factor in ((ac / tau if ac and tau else None, "autocorrelation_factor"),
+                          (peak * tau / energy if peak and tau and energy else None, "peak_power_factor")):
+        if ratio is None:
+            continue
+        best = min(PULSE_SHAPES.values(), key=lambda s: abs(ratio / getattr(s, factor) - 1.0))
+        if abs(ratio / getattr(best, factor) - 1.0) < 0.005:
+            return best.name
+    return None
+
+
+def _branch_ends(stages, label: str, sheet: dict) -> list[str]:
+    """The column that ends each branch of a path, in the order the checker walks it: the last
+    of the branch's stages that has a column (a splitter ends the walk of its path)."""
+    names = [label]
+    for stage in stages if isinstance(stages, list) else []:
+        if not isinstance(stage, dict):
+            continue
+        name = stage.get("name") if isinstance(stage.get("name"), str) else None
+        if name is not None:
+            names.append(name)
+        if stage.get("kind") == "splitter" and name in sheet:  # a splitter with a column ends the walk
+            branches = stage.get("branches")
+            if not (isinstance(branches, dict) and len(branches) == 2):
+                return [name]
+            ends: list[str] = []
+            for branch, spec in branches.items():
+                spec = spec if isinstance(spec, dict) else {}
+                ends += _branch_ends(spec.get("path"), str(branch), sheet)
+            return ends
+    present = [n for n in names if n in sheet]
+    return present[-1:]
+
+
+class _Context:
+    """What the plots need beyond the sheet: the pulse shape and the branch ends."""
+
+    def __init__(self, result: FileResult) -> None:
+        data = _read_spec(result.path) if result.sheet else None
+        laser = result.sheet.get("laser", {})
+        raw = data.get("laser", {}).get("pulse_shape") if data and isinstance(data.get("laser"), dict) else None
+        if isinstance(raw, str) and raw in PULSE_SHAPES:
+            self.shape, self.shape_source = raw, "as stated in the laser block"
+        elif data is not None and raw is None:
+            self.shape, self.shape_source = DEFAULT_SHAPE, "not stated, so Gaussian is assumed as in the check"
+        else:
+            found = _shape_from_sheet(laser)
+            self.shape, self.shape_source = (found, "recognised from the sheet") if found else (
+                DEFAULT_SHAPE, "not known, so Gaussian is assumed")
+        columns = list(result.sheet)
+        if data is not None and isinstance(data.get("path"), list):
+            ends = _branch_ends(data["path"], "laser", result.sheet)
+        elif data is None and len(columns) > 1:
+            ends = columns[-1:]
+        else:
+            ends = []
+        self.ends = [e for e in dict.fromkeys(ends) if e != "laser"]
+
+
+# ----------------------------------------------------------------- plots
+def _plotter():
+    """The plots module, or None and the reason it cannot be used."""
+    try:
+        return importlib.import_module("speccheck.formats.plots"), None
+    except ImportError:
+        return None, "matplotlib is not installed"
+    except Exception as exc:  # a broken installation: no plots, never a failed report
+        return None, f"matplotlib could not be loaded ({type(exc).__name__})"
+
+
+def _positive(cells: dict, q: str) -> float | None:
+    c = cells.get(q)
+    v = c.value if c is not None else None
+    return v if isinstance(v, float | int) and math.isfinite(v) and v > 0 else None
+
+
+def _figures(result: FileResult, ctx: _Context, units, show: _Show) -> list[tuple[str, str, Callable]]:
+    """(title, caption, draw) of each plot the sheet has the numbers for."""
+    sheet = result.sheet
+    columns = ["laser"] + ctx.ends if "laser" in sheet else []
+    figures = []
+    curves: list = []
+    for c in columns:
+        tau = _positive(sheet[c], "pulse_duration")
+        if not tau:
+            continue
+        for k, (names, tau2) in enumerate(curves):
+            if abs(tau / tau2 - 1) < 1e-9:  # one curve, both names
+                curves[k] = (f"{names}, {c}", tau2)
+                break
+        else:
+            curves.append((c, tau))
+    curves = curves[:MAX_CURVES]
+    shape_words = {"gaussian": "Gaussian", "sech2": "sech²", "lorentzian": "Lorentzian", "flat_top": "flat-top"}
+    shape = shape_words.get(ctx.shape, ctx.shape)
+    if curves:
+        where = "at the laser" + ("" if not ctx.ends else " and at the end of the path" if len(ctx.ends) == 1
+                                  else " and at the end of each branch")
+        caption = (f"Temporal intensity {where}: a {shape} profile ({ctx.shape_source}) with the sheet's FWHM "
+                   "durations: " + "; ".join(f"{c} {show(t, show.prefixed(t, 'fs'))}" for c, t in curves) + ".")
+        figures.append(("Temporal intensity profile", caption,
+                        lambda p, curves=curves: p.temporal(units, ctx.shape, curves)))
+    spectra: list = []
+    for c in columns:
+        lam, dnu = _positive(sheet[c], "wavelength"), _positive(sheet[c], "spectral_bandwidth")
+        if not (lam and dnu):
+            continue
+        for k, (names, lam2, dnu2) in enumerate(spectra):
+            if abs(lam / lam2 - 1) < 1e-9 and abs(dnu / dnu2 - 1) < 1e-9:  # one curve, both names
+                spectra[k] = (f"{names}, {c}", lam2, dnu2)
+                break
+        else:
+            spectra.append((c, lam, dnu))
+    spectra = spectra[:MAX_CURVES]
+    if spectra:
+        caption = ("Spectrum: a " + shape + " profile in frequency with the sheet's FWHM bandwidth, centred at "
+                   "its wavelength (an illustration, not a measured spectrum): " + "; ".join(
+                       f"{c} {show(lam, show.prefixed(lam, 'nm'))}, Δν {show(dnu, show.prefixed(dnu, 'THz'))}"
+                       for c, lam, dnu in spectra) + ".")
+        figures.append(("Spectrum", caption, lambda p, spectra=spectra: p.spectra(units, ctx.shape, spectra)))
+    foci = []
+    for c, cells in sheet.items():
+        w0, zr = _positive(cells, "beam_radius"), _positive(cells, "rayleigh_range")
+        if w0 and zr:
+            foci.append((c, w0, zr))
+    foci = foci[:MAX_FOCI]
+    if foci:
+        caption = ("Beam radius around each focus, w(z) = w0 √(1 + (z/z_R)²), over ±3 z_R: " + "; ".join(
+            f"{c}: w0 {show(w0, show.prefixed(w0, 'µm'))}, z_R {show(zr, show.prefixed(zr, 'mm'))}"
+            for c, w0, zr in foci) + ".")
+        figures.append(("Beam radius around the focus", caption, lambda p, foci=foci: p.caustic(units, foci)))
+    return figures
+
+
+# ------------------------------------------------------------------ page
+def _counts(counts: dict) -> str:
+    return ", ".join(f"{counts[s]} {s}{'' if counts[s] == 1 else 's'}" for s in SEVERITIES)
+
+
+def _where(f: Finding) -> str:
+    if f.line and f.column:
+        return f"{f.path}:{f.line}:{f.column}"
+    return f"{f.path}:{f.line}" if f.line else f.path
+
+
+def _finding(f: Finding) -> str:
+    from ..rules import RULES
+
+    e = escape
+    out = [f'<li class="finding {e(f.severity)}" data-rule="{e(f.rule)}">',
+           f'<div class="head"><span class="badge {e(f.severity)}">{e(f.severity)}</span>'
+           f'<code class="where">{e(_where(f))}</code><code class="rule">{e(f.rule)}</code></div>',
+           f'<p class="msg">{e(f.message)}</p>']
+    meta = []
+    if f.suspect:
+        meta.append(f"suspect: <code>{e(f.suspect)}</code>")
+    if f.candidates:
+        meta.append("one of: " + ", ".join(f"<code>{e(c)}</code>" for c in f.candidates))
+    if f.cause:
+        meta.append(f"likely mistake: <code>{e(f.cause)}</code>")
+    if meta:
+        out.append(f'<p class="meta">{"; ".join(meta)}</p>')
+    rule = RULES.get(f.rule)
+    if rule is not None:
+        out.append(f"<details><summary>About <code>{e(rule.id)}</code>: {e(rule.summary)}</summary>"
+                   f"<p>{e(rule.explanation)}</p>")
+        if rule.failing:
+            out.append(f"<p>Fails:</p><pre>{e(rule.failing)}</pre>")
+        if rule.passing:
+            out.append(f"<p>Passes:</p><pre>{e(rule.passing)}</pre>")
+        out.append("</details>")
+    out.append("</li>")
+    return "".join(out)
+
+
+def _grid(result: FileResult, show: _Show, n: int) -> str:
+    sheet = result.sheet
+    rows: list[str] = []
+    for cells in sheet.values():
+        rows += [q for q in cells if q not in rows]
+    if not rows:
+        return '<p class="notice">No sheet: the spec was not read far enough to fill one in.</p>'
+    from ..quantities import BY_NAME
+
+    e = escape
+    out = ['<p class="legend">Cells: <span class="c-stated">stated</span>'
+           '<span class="c-derived"><span class="mark">=</span>derived</span>'
+           '<span class="c-conflict"><span class="mark">!</span>conflict</span>'
+           '<span><span class="assumed">(default)</span> a default value</span></p>',
+           f'<div class="scroll" role="region" aria-labelledby="sheet-{n}" tabindex="0">'
+           f'<table class="sheet" data-rows="{len(rows)}" data-columns="{len(sheet)}">'
+           f'<caption id="sheet-{n}">Sheet: {len(rows)} quantities × {len(sheet)} '
+           f'column{"" if len(sheet) == 1 else "s"}</caption>',
+           '<thead><tr><th scope="col">quantity</th>'
+           + "".join(f'<th scope="col">{e(name)}</th>' for name in sheet) + "</tr></thead><tbody>"]
+    for q in rows:
+        meaning = BY_NAME[q].meaning if q in BY_NAME else ""
+        title = f' title="{e(meaning)}"' if meaning else ""
+        line = [f'<tr><th scope="row"{title}>{e(q)}</th>']
+        for name in sheet:
+            cell = sheet[name].get(q)
+            if cell is None:
+                line.append('<td class="c-none"></td>')
+                continue
+            status = cell.status if cell.status in _STATUS_MARK else "derived"
+            mark = _STATUS_MARK[status]
+            text = [f'<td class="c-{status}" data-status="{status}" title="{e(_cell_title(cell, show))}">']
+            if mark:
+                text.append(f'<span class="mark" aria-hidden="true">{mark}</span>')
+            text.append(f'<span class="vh">{status}: </span>{e(_cell_main(cell, show))}')
+            if cell.assumed:
+                text.append(' <span class="assumed">(default)</span>')
+            if status == "conflict":
+                implied = _implied(cell, show)
+                if implied:
+                    text.append(f'<span class="implied">{e(implied)}</span>')
+            text.append("</td>")
+            line.append("".join(text))
+        line.append("</tr>")
+        out.append("".join(line))
+    out.append("</tbody></table></div>")
+    return "".join(out)
+
+
+def _plots(result: FileResult, units, show: _Show, plotter, n: int) -> str:
+    if not result.sheet:
+        return ""
+    ctx = _Context(result)
+    figures = _figures(result, ctx, units, show)
+    if not figures:
+        return ('<h3>Plots</h3><p class="notice">No plots: the sheet has no pulse duration, bandwidth or '
+                "focus to draw.</p>")
+    out = ["<h3>Plots</h3>"]
+    if plotter is None:
+        names = ", ".join(title.lower() for title, _, _ in figures)
+        out.append(f'<p class="notice">Plots not drawn ({escape(names)}): they need matplotlib, '
+                   f"<code>{escape(INSTALL_HINT)}</code>.</p>")
+        return "".join(out)
+    for k, (title, caption, draw) in enumerate(figures):
+        try:
+            svg = plotter.inline(draw(plotter), f"f{n}p{k}-", title)
+        except Exception as exc:  # a figure that cannot be drawn is left out, never a failed report
+            out.append(f'<p class="notice">{escape(title)}: not drawn ({escape(type(exc).__name__)}).</p>')
+            continue
+        out.append(f'<figure class="plot" data-plot="{k}">{svg}<figcaption>{escape(caption)}</figcaption>'
+                   "</figure>")
+    return "".join(out)
+
+
+def _caution(results: list[FileResult]) -> str:
+    by_message: dict[str, list[str]] = {}
+    for r in results:
+        for f in r.findings:
+            if f.rule == "laser-safety":
+                by_message.setdefault(f.message, [])
+                if r.path not in by_message[f.message]:
+                    by_message[f.message].append(r.path)
+    if not by_message:
+        return ""
+    out = ['<aside class="caution" id="laser-safety" role="note" aria-labelledby="caution-h">'
+           '<h2 id="caution-h"><span aria-hidden="true">⚠ </span>Laser safety</h2>']
+    for message, paths in by_message.items():
+        text = message[len("laser safety: "):] if message.lower().startswith("laser safety: ") else message
+        text = text[:1].upper() + text[1:]
+        out.append(f"<p>{escape(text)}</p>")
+        if len(results) > 1:
+            out.append('<p class="meta">For: ' + ", ".join(f"<code>{escape(p)}</code>" for p in paths) + "</p>")
+    out.append("</aside>")
+    return "".join(out)
+
+
+def render(results: list[FileResult], units, plotter=None, why: str | None = None) -> str:
+    show = _Show(units)
+    counts = {s: sum(r.count(s) for r in results) for s in SEVERITIES}
+    n = len(results)
+    out = ["<!DOCTYPE html>", '<html lang="en"><head><meta charset="utf-8">',
+           f'<meta http-equiv="Content-Security-Policy" content="{_CSP}">',
+           '<meta name="viewport" content="width=device-width, initial-scale=1">',
+           f'<meta name="generator" content="speccheck {escape(__version__)}">',
+           "<title>" + escape(f"speccheck report: {results[0].title or results[0].path}" if n == 1
+                              else f"speccheck report: {n} files") + "</title>",
+           f"<style>{_CSS}</style></head><body>",
+           '<header><h1>speccheck report</h1>'
+           f'<p class="summary" id="summary">{_counts(counts)} in {n} file{"" if n == 1 else "s"}</p></header>',
+           _caution(results)]
+    if plotter is None and any(r.sheet for r in results):
+        out.append(f'<p class="notice" id="no-plots">This report has no plots: {escape(why or "no plotting")}. '
+                   f"To get them, install the report extra: <code>{escape(INSTALL_HINT)}</code></p>")
+    if n > 1:
+        out.append('<nav aria-label="files"><ol>' + "".join(
+            f'<li><a href="#file-{i + 1}">{escape(r.path)}</a> — {escape(r.title or "")} '
+            f'<span class="meta">({_counts({s: r.count(s) for s in SEVERITIES})})</span></li>'
+            for i, r in enumerate(results)) + "</ol></nav>")
+    out.append("<main>")
+    for i, r in enumerate(results, 1):
+        heading = r.title or r.path
+        out.append(f'<section class="file" id="file-{i}" aria-labelledby="file-{i}-h">'
+                   f'<h2 id="file-{i}-h">{escape(heading)}</h2>'
+                   f'<p class="path"><code>{escape(r.path)}</code></p>'
+                   f'<p class="counts">{_counts({s: r.count(s) for s in SEVERITIES})}</p>'
+                   "<h3>Findings</h3>")
+        if r.findings:
+            out.append('<ol class="findings">' + "".join(_finding(f) for f in r.findings) + "</ol>")
+        else:
+            out.append("<p>No findings.</p>")
+        out.append("<h3>Sheet</h3>" + _grid(r, show, i))
+        out.append(_plots(r, units, show, plotter, i))
+        out.append("</section>")
+    out.append("</main>")
+    out.append(f"<footer>Written by speccheck {escape(__version__)}. Values are shown in the units of the spec; "
+               "hover a cell for its interval.</footer></body></html>\n")
+    return "\n".join(part for part in out if part)
+
+
+def write(results: list[FileResult], out, options=None) -> None:
+    units = getattr(options, "units", None)
+    if units is None:
+        from ..units import UnitSystem
+
+        units = UnitSystem()
+    plotter, why = _plotter()
+    out.write(render(results, units, plotter, why))

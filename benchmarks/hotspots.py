@@ -294,7 +294,7 @@ def profile(python: str, folder: Path, tmp: Path, top: int) -> None:
         shown += 1
         if shown >= top:
             break
-    print(f"\n   by own time")
+    print("\n   by own time")
     for key, (cc, nc, tt, ct, _) in sorted(stats.stats.items(), key=lambda kv: -kv[1][2])[:top // 2]:
         print(f"   {100 * ct / total:6.1f} {100 * tt / total:6.1f} {nc:9d}  {short(key)}")
     print()

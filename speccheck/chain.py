@@ -57,6 +57,7 @@ class _Chain:
         laser = data.get("laser") if isinstance(data.get("laser"), dict) else {}
         self.categorical = {k: laser[k] for k in ("pulse_shape", "beam_profile") if k in laser}
         self.context = None
+        self.ends: list[str] = []  # the last column of each branch, in the order walked
         defaults = data.get("defaults") if isinstance(data.get("defaults"), dict) else {}
         self.b_limit = self.setting(defaults, "b_integral_limit", hazards.B_INTEGRAL_LIMIT)
         self.safety_factor = self.setting(defaults, "damage_safety_factor", hazards.DAMAGE_SAFETY_FACTOR)
@@ -469,6 +470,8 @@ class _Chain:
     # ------------------------------------------------------------ targets
     def finish(self, columns: list, beam: Beam, target, target_at: tuple) -> None:
         last = columns[-1]
+        if last != "laser":
+            self.ends.append(last)
         cells = self.sheet.get(last, {})
         self.compensation(last, beam, target_at)
         self.strong_field(last, target, target_at)
@@ -561,6 +564,9 @@ def _gdd_cell(v: tuple) -> Cell:
 
 
 
-def check_path(checker, data: dict, tolerance: float, report, sheet: dict) -> None:
-    _Chain(checker, data, tolerance, report, sheet).run()
+def check_path(checker, data: dict, tolerance: float, report, sheet: dict) -> list[str]:
+    """Check the beam path into ``sheet``; return the column that ends each branch."""
+    chain = _Chain(checker, data, tolerance, report, sheet)
+    chain.run()
+    return chain.ends
 

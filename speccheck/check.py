@@ -78,23 +78,26 @@ class Checker:
             for rule_id, at, message, at_key in validate(data):
                 report.add(rule_id, message, at, key=at_key)
         title = None
+        shape, shape_stated, ends = None, False, ()
         if isinstance(data, dict):
             title = data.get("title") if isinstance(data.get("title"), str) else None
             tolerance = self._tolerance(data, report)
             block = data.get("laser")
             if isinstance(block, dict):
                 sheet["laser"] = _BlockCheck(self, "laser", block, tolerance, report).run()
+                shape_stated = block.get("pulse_shape") in PULSE_SHAPES
+                shape = block["pulse_shape"] if shape_stated else DEFAULT_SHAPE
                 points = data.get("operating_points")
                 if isinstance(points, list):
                     self._operating_points(block, points, tolerance, report, sheet)
                 if isinstance(data.get("path"), list) or isinstance(data.get("target"), dict):
                     from .chain import check_path
 
-                    check_path(self, data, tolerance, report, sheet)
+                    ends = tuple(check_path(self, data, tolerance, report, sheet))
             if sheet:
                 self._safety(data, sheet, report)
         findings = tuple(sorted(report.findings, key=Finding.sort_key))
-        return FileResult(path, findings, sheet, title)
+        return FileResult(path, findings, sheet, title, shape, shape_stated, ends)
 
     def _safety(self, data: dict, sheet: dict, report: _Report) -> None:
         from . import safety

@@ -51,6 +51,9 @@ class FileResult:
     findings: tuple[Finding, ...]
     sheet: dict[str, dict[str, Cell]] = field(default_factory=dict)
     title: str | None = None
+    pulse_shape: str | None = None  # the laser's pulse shape as the check used it
+    pulse_shape_stated: bool = False  # False: not stated, the default was assumed
+    branch_ends: tuple[str, ...] = ()  # the column that ends each branch of the beam path
 
     def count(self, severity: str) -> int:
         return sum(1 for f in self.findings if f.severity == severity)

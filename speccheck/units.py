@@ -16,7 +16,6 @@ import re
 from dataclasses import dataclass
 from functools import lru_cache
 
-from .quantities import QUANTITIES
 
 # Dimension keys speccheck knows, by SI unit, with a human name.
 DIMENSION_NAMES: dict[str, str] = {

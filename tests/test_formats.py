@@ -12,7 +12,7 @@ import pytest
 from speccheck import __version__
 from speccheck.findings import Cell, FileResult, Finding
 from speccheck.formats import FORMATS, OutputOptions, writer
-from speccheck.formats import github, junit, sarif
+from speccheck.formats import github, sarif
 from speccheck.rules import RULES
 
 EXAMPLES = Path(__file__).resolve().parent.parent / "example_specs"

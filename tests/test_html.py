@@ -22,8 +22,8 @@ from hypothesis import HealthCheck, given, settings
 from hypothesis import strategies as st
 
 from speccheck.cli import run
-from speccheck.findings import Cell, FileResult, Finding
-from speccheck.formats import FORMATS, OutputOptions
+from speccheck.findings import FileResult, Finding
+from speccheck.formats import FORMATS
 from speccheck.formats import html as html_format
 
 ROOT = Path(__file__).resolve().parent.parent
@@ -282,37 +282,27 @@ def test_other_formats_never_import_matplotlib():
     assert done.stdout.strip() == "False"
 
 
-# ------------------------------------------------- what the sheet lacks
-def test_the_end_of_each_branch_is_found_in_the_path():
-    sheet = dict.fromkeys(["laser", "a", "split", "left", "l1", "l2", "right", "inner", "x", "y", "y1"])
-    path = [{"name": "a", "kind": "optic"},
-            {"name": "split", "kind": "splitter", "branches": {
-                "left": {"path": [{"name": "l1", "kind": "optic"}, {"name": "l2", "kind": "focus"}]},
-                "right": {"path": [{"name": "inner", "kind": "splitter", "branches": {
-                    "x": {}, "y": {"path": [{"name": "y1", "kind": "optic"},
-                                            {"name": "gone", "kind": "optic"}]}}}]}}},
-            {"name": "after-the-splitter", "kind": "optic"}]
-    assert html_format._branch_ends(path, "laser", sheet) == ["l2", "x", "y1"]
-    assert html_format._branch_ends([{"name": "a", "kind": "optic"}], "laser", sheet) == ["a"]
-    assert html_format._branch_ends("not a list", "laser", sheet) == ["laser"]
+# ------------------------------------------------- beyond the sheet
+def test_the_end_of_each_branch_comes_from_the_check(check):
+    result = check("""
+        laser: {wavelength: 800 nm, pulse_duration: 30 fs, pulse_energy: 1 mJ, beam_diameter: 5 mm}
+        path:
+          - {name: a, kind: optic}
+          - name: split
+            kind: splitter
+            ratio: 50%
+            branches:
+              left: {path: [{name: l1, kind: optic}, {name: l2, kind: focus, focal_length: 100 mm}]}
+              right: {path: []}
+        """)
+    assert html_format._Context(result).ends == ["l2", "right"]
 
 
 @pytest.mark.parametrize("shape", ["gaussian", "sech2", "lorentzian", "flat_top"])
-def test_the_shape_is_recognised_from_the_sheet_when_the_file_is_not_there(check, shape):
-    result = check(f"laser: {{wavelength: 800 nm, pulse_duration: 30 fs, pulse_energy: 1 mJ, pulse_shape: {shape}}}",
-                   path="not-on-disk.yaml")
-    ctx = html_format._Context(result)
-    assert (ctx.shape, ctx.shape_source) == (shape, "recognised from the sheet")
-
-
-def test_the_shape_comes_from_the_laser_block_when_the_file_is_there(tmp_path, checker):
-    spec = tmp_path / "s.yaml"
-    spec.write_text("spec_version: 1\nlaser: {wavelength: 1030 nm, pulse_duration: 300 fs, pulse_shape: sech2}\n",
-                    encoding="utf-8")
-    ctx = html_format._Context(checker.check_text(spec.read_bytes(), str(spec)))
-    assert (ctx.shape, ctx.shape_source) == ("sech2", "as stated in the laser block")
-    spec.write_text("spec_version: 1\nlaser: {wavelength: 1030 nm, pulse_duration: 300 fs}\n", encoding="utf-8")
-    ctx = html_format._Context(checker.check_text(spec.read_bytes(), str(spec)))
+def test_the_shape_comes_from_the_check(check, shape):
+    ctx = html_format._Context(check(f"laser: {{pulse_duration: 30 fs, pulse_shape: {shape}}}"))
+    assert (ctx.shape, ctx.shape_source) == (shape, "as stated in the laser block")
+    ctx = html_format._Context(check("laser: {pulse_duration: 30 fs}"))
     assert ctx.shape == "gaussian" and "assumed" in ctx.shape_source
 
 

@@ -30,12 +30,11 @@ from __future__ import annotations
 import importlib
 import math
 from html import escape
-from pathlib import Path
 from typing import Callable
 
 from .. import __version__
 from ..findings import Cell, FileResult, Finding, SEVERITIES
-from ..shapes import DEFAULT_SHAPE, PULSE_SHAPES
+from ..shapes import DEFAULT_SHAPE
 from ..units import choose_unit, format_number, format_quantity, pretty_unit
 
 INSTALL_HINT = "pip install 'speccheck[report]'"
@@ -166,85 +165,15 @@ def _implied(cell: Cell, show: _Show) -> str:
     return "≠ implied " + show.span(cell.implied_low, cell.implied_high, unit)
 
 
-# ------------------------------------------------------- what the sheet lacks
-def _read_spec(path: str) -> dict | None:
-    """The spec's data, read again with the checker's own loader and limits, or None."""
-    try:
-        from ..loader import Limits, load
-
-        file = Path(path)
-        if not file.is_file() or file.stat().st_size > Limits().max_bytes:
-            return None
-        data = load(file.read_bytes()).data
-        return data if isinstance(data, dict) else None
-    except Exception:  # whatever the file is now, the report goes on without it
-        return None
-
-
-def _shape_from_sheet(laser: dict) -> str | None:
-    """The pulse shape whose autocorrelation (or peak-power) factor the laser column shows."""
-    def value(q):
-        c = laser.get(q)
-        return c.value if c is not None and c.value and math.isfinite(c.value) else None
-
-    tau, ac, energy, peak = (value(q) for q in ("pulse_duration", "autocorrelation_width", "pulse_energy",
-                                                 "peak_power"))
-    for ratio, factor in ((ac / tau if ac and tau else None, "autocorrelation_factor"),
-                          (peak * tau / energy if peak and tau and energy else None, "peak_power_factor")):
-        if ratio is None:
-            continue
-        best = min(PULSE_SHAPES.values(), key=lambda s: abs(ratio / getattr(s, factor) - 1.0))
-        if abs(ratio / getattr(best, factor) - 1.0) < 0.005:
-            return best.name
-    return None
-
-
-def _branch_ends(stages, label: str, sheet: dict) -> list[str]:
-    """The column that ends each branch of a path, in the order the checker walks it: the last
-    of the branch's stages that has a column (a splitter ends the walk of its path)."""
-    names = [label]
-    for stage in stages if isinstance(stages, list) else []:
-        if not isinstance(stage, dict):
-            continue
-        name = stage.get("name") if isinstance(stage.get("name"), str) else None
-        if name is not None:
-            names.append(name)
-        if stage.get("kind") == "splitter" and name in sheet:  # a splitter with a column ends the walk
-            branches = stage.get("branches")
-            if not (isinstance(branches, dict) and len(branches) == 2):
-                return [name]
-            ends: list[str] = []
-            for branch, spec in branches.items():
-                spec = spec if isinstance(spec, dict) else {}
-                ends += _branch_ends(spec.get("path"), str(branch), sheet)
-            return ends
-    present = [n for n in names if n in sheet]
-    return present[-1:]
-
-
+# ------------------------------------------------------- beyond the sheet
 class _Context:
-    """What the plots need beyond the sheet: the pulse shape and the branch ends."""
+    """What the plots need beyond the sheet: the pulse shape and the branch ends (from the result)."""
 
     def __init__(self, result: FileResult) -> None:
-        data = _read_spec(result.path) if result.sheet else None
-        laser = result.sheet.get("laser", {})
-        raw = data.get("laser", {}).get("pulse_shape") if data and isinstance(data.get("laser"), dict) else None
-        if isinstance(raw, str) and raw in PULSE_SHAPES:
-            self.shape, self.shape_source = raw, "as stated in the laser block"
-        elif data is not None and raw is None:
-            self.shape, self.shape_source = DEFAULT_SHAPE, "not stated, so Gaussian is assumed as in the check"
-        else:
-            found = _shape_from_sheet(laser)
-            self.shape, self.shape_source = (found, "recognised from the sheet") if found else (
-                DEFAULT_SHAPE, "not known, so Gaussian is assumed")
-        columns = list(result.sheet)
-        if data is not None and isinstance(data.get("path"), list):
-            ends = _branch_ends(data["path"], "laser", result.sheet)
-        elif data is None and len(columns) > 1:
-            ends = columns[-1:]
-        else:
-            ends = []
-        self.ends = [e for e in dict.fromkeys(ends) if e != "laser"]
+        self.shape = result.pulse_shape or DEFAULT_SHAPE
+        self.shape_source = ("as stated in the laser block" if result.pulse_shape_stated
+                             else "not stated, so Gaussian is assumed as in the check")
+        self.ends = [e for e in dict.fromkeys(result.branch_ends) if e in result.sheet and e != "laser"]
 
 
 # ----------------------------------------------------------------- plots

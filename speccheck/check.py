@@ -552,7 +552,8 @@ class _BlockCheck:
             quantity = BY_NAME[q]
             if q in self.stated:
                 s = self.stated[q]
-                low, high = _exp(_ln(s.low)), _exp(_ln(s.high))
+                low = s.low if s.low > 0.0 else None
+                high = s.high if math.isfinite(s.high) else None
                 value = s.typical if s.typical is not None else _centre(low, high)
                 if i in removed:
                     state = d.state if d.suspects else implied(self.net, self.log_stated, i)

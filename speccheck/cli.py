@@ -199,7 +199,7 @@ def _check(args, stdout, stderr) -> int:
     config = _config(args, stderr)
     if config is None:
         return 2
-    expansion = _spec_files(args.paths, cfg.Selector(config))
+    expansion = _spec_files(args.paths, cfg.Selector(config) if config.include or config.exclude else None)
     for pattern in expansion.unmatched:
         stderr.write(f"speccheck: no spec file matches {pattern!r}\n")
     for name in expansion.skipped:

@@ -128,6 +128,13 @@ def propagate(net: Network, stated: dict) -> State:
         queued[r] = False
         ln_k = relations[r][2]
         bit = 1 << r
+        # A relation with two or more quantities still wholly unknown cannot bound any of them.
+        unknown = 0
+        for k, _ in relations[r][1]:
+            if lo[k] == -inf and hi[k] == inf:
+                unknown += 1
+        if unknown > 1:
+            continue
         for j, ej, others in solved[r]:
             steps += 1
             # Σ_{k≠j} e_k y_k as an interval [s_lo, s_hi], with the supports of each end.
@@ -243,20 +250,33 @@ def evaluate(net: Network, known: dict) -> dict:
     """Spreadsheet-style point values: solve every relation with one unknown left.
 
     ``known``: var index -> ln value.  Where values are over-determined the first
-    relation in table order wins; intervals (``propagate``) decide consistency,
+    relation to reach a quantity wins; intervals (``propagate``) decide consistency,
     this only gives the nominal number to show for each derived cell.
     """
     values = dict(known)
-    changed = True
-    while changed:
-        changed = False
-        for _, terms, ln_k in net.relations:
-            unknown = [(j, e) for j, e in terms if j not in values]
-            if len(unknown) != 1:
+    queue = deque(range(len(net.relations)))
+    queued = [True] * len(net.relations)
+    while queue:
+        r = queue.popleft()
+        queued[r] = False
+        _, terms, ln_k = net.relations[r]
+        unknown = None
+        for j, ej in terms:
+            if j not in values:
+                if unknown is not None:
+                    break
+                unknown = (j, ej)
+        else:
+            if unknown is None:
                 continue
-            j, ej = unknown[0]
+            j, ej = unknown
             rest = sum(e * values[k] for k, e in terms if k != j)
             if math.isfinite(rest):
                 values[j] = (ln_k - rest) / ej
-                changed = True
+                for other in net.touching[j]:
+                    if not queued[other]:
+                        queued[other] = True
+                        queue.append(other)
     return values
+
+

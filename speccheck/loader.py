@@ -70,6 +70,7 @@ _SAFE_SCALARS = {
     "tag:yaml.org,2002:null",
 }
 _AS_TEXT = {"tag:yaml.org,2002:timestamp", "tag:yaml.org,2002:binary"}
+_STR = "tag:yaml.org,2002:str"
 _MAP = "tag:yaml.org,2002:map"
 _SEQ = "tag:yaml.org,2002:seq"
 
@@ -153,6 +154,8 @@ class _Builder:
         return out
 
     def _scalar(self, node):
+        if node.tag == _STR:
+            return node.value  # most scalars: what the constructor would return, without the call
         if node.tag in _AS_TEXT:
             return str(node.value)
         if node.tag not in _SAFE_SCALARS:
@@ -192,7 +195,9 @@ def load(text: str | bytes, limits: Limits = Limits()) -> Document:
             doc.problems.append(Problem("yaml-syntax", f"the file is not UTF-8 text (byte {exc.start})", 1, 1))
             return doc
     try:
-        too_many = _count_nodes(text, limits.max_nodes)
+        # Every node takes at least one character, so only a text that long can hold too many
+        # (aliases, which can expand a short text, are counted by the builder).
+        too_many = _count_nodes(text, limits.max_nodes) if len(text) > limits.max_nodes else None
         if too_many is not None:  # composing would hold every node in memory first
             doc.problems.append(Problem("input-limit", f"the document has more than {limits.max_nodes} "
                                         "nodes; reading stopped", *_mark(too_many)))

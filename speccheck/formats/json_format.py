@@ -8,6 +8,7 @@ digits, findings sorted; compact (one line).
 from __future__ import annotations
 
 import json
+import math
 
 from ..findings import Cell, FileResult, Finding, SEVERITIES
 
@@ -17,7 +18,8 @@ VERSION = 1
 def _num(x: float | None) -> float | None:
     if x is None or x == 0.0:
         return None if x is None else 0.0
-    return float(f"{x:.15g}")
+    rounded = float("%.15g" % x)
+    return rounded if rounded not in (math.inf, -math.inf) else x  # 1.7976931348623157e308 rounds up
 
 
 def finding_dict(f: Finding) -> dict:

@@ -302,8 +302,33 @@ def _make_wrong(error: str, lines: dict, rng: random.Random) -> str:
 
 # ------------------------------------------------------------------ many specs
 
-def generate(n: int, folder, seed: int = 0, error_rate: float = 0.05) -> list[dict]:
-    """Write ``n`` specs under ``folder`` (in a few lab subfolders); return one record per spec."""
+_STAGES = (
+    "{{name: {name}, kind: optic, transmission: {t}%}}",
+    "{{name: {name}, kind: material, material: fused_silica, thickness: {mm} mm}}",
+    "{{name: {name}, kind: dispersion, gdd: -{gdd} fs^2}}",
+    "{{name: {name}, kind: telescope, magnification: {m}}}",
+    "{{name: {name}, kind: attenuator, transmission: {a}%}}",
+)
+
+
+def path_block(rng: random.Random, n_stages: int) -> str:
+    """A beam path of ``n_stages`` invented stages, ending at a loose focus."""
+    lines = ["path:"]
+    for k in range(n_stages - 1):
+        template = _STAGES[k % len(_STAGES)]
+        lines.append("  - " + template.format(name=f"s{k}", t=rng.choice((95, 98, 99)), mm=rng.choice((1, 2, 3)),
+                                               gdd=rng.choice((50, 100, 200)), m=rng.choice((0.9, 1, 1.1)),
+                                               a=rng.choice((80, 90))))
+    lines.append(f"  - {{name: focus, kind: focus, focal_length: {rng.choice((300, 500, 1000))} mm}}")
+    return "\n".join(lines) + "\n"
+
+
+def generate(n: int, folder, seed: int = 0, error_rate: float = 0.05, path_rate: float = 0.1,
+             stages: int | None = None) -> list[dict]:
+    """Write ``n`` specs under ``folder`` (in a few lab subfolders); return one record per spec.
+
+    A share ``path_rate`` of them gets a short beam path; with ``stages`` every spec gets a path
+    of that many stages (for the scaling over stages)."""
     rng = random.Random(seed)
     folder = Path(folder)
     records = []
@@ -311,6 +336,10 @@ def generate(n: int, folder, seed: int = 0, error_rate: float = 0.05) -> list[di
         error = rng.choice(ERRORS) if rng.random() < error_rate else None
         lab = LABS[i % len(LABS)]
         text, record = make_spec(rng, i, error, lab)
+        n_stages = stages if stages is not None else (3 if rng.random() < path_rate else 0)
+        if n_stages and "beam_diameter" in text and "wavelength" in text:
+            text += path_block(rng, n_stages)
+            record["stages"] = n_stages
         sub = folder / lab
         sub.mkdir(parents=True, exist_ok=True)
         path = sub / f"spec-{i:05d}.{'yml' if i % 10 == 9 else 'yaml'}"

@@ -259,6 +259,23 @@ def main(argv: list[str] | None = None) -> int:
             print(f"  n={n:>6}  (a) {an[0]:8.2f} s  {an[0] / n * 1e3:6.2f} ms/file  marginal "
                   f"{(an[0] - as_json[0]) / n * 1e3:6.2f} ms/file   |  (b) {bn[0]:7.2f} s  "
                   f"{bn[0] / n * 1e3:6.2f} ms/file   a/b {an[0] / bn[0]:.2f}x")
+        print()
+
+        # ---------------------------------------------------------- 4. stages
+        print("4. Scaling with the length of the beam path (100 specs each, every spec with a path)")
+        per_stage = []
+        for n_stages in (1, 10, 100):
+            folder = tmp / f"stages-{n_stages}"
+            recs = generate(100, folder, seed=args.seed, error_rate=0.0, stages=n_stages)
+            with_path = sum(1 for r in recs if r.get("stages"))
+            t = runner.time(check_args(str(folder)), ok=CHECK_OK)
+            marginal = (t[0] - as_json[0]) / 100
+            per_stage.append((n_stages, marginal))
+            print(f"  stages={n_stages:>4}  {with_path} specs with a path   (a) {t[0]:7.2f} s   "
+                  f"{t[0] / 100 * 1e3:7.2f} ms/file   marginal {marginal * 1e3:7.2f} ms/file")
+        (s1, m1), _, (s100, m100) = per_stage
+        print(f"  time per added stage: {(m100 - m1) / (s100 - s1) * 1e3:.3f} ms/spec/stage "
+              f"(from 1 to 100 stages)")
         if args.keep:
             print(f"\nkept {tmp}")
     finally:

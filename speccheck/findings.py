@@ -3,6 +3,7 @@
 from __future__ import annotations
 
 from dataclasses import dataclass, field
+from typing import NamedTuple
 
 SEVERITIES = ("error", "warning", "note")
 SEVERITY_RANK = {s: i for i, s in enumerate(SEVERITIES)}
@@ -29,9 +30,9 @@ class Finding:
         return (self.path, self.line or 0, self.column or 0, self.rule, self.message)
 
 
-@dataclass(frozen=True)
-class Cell:
-    """One quantity of one block of the sheet, in SI units."""
+class Cell(NamedTuple):
+    """One quantity of one column of the sheet, in SI units (an immutable record; a named tuple,
+    because a sheet holds thousands of them and they are made in the checker's inner loop)."""
 
     status: str  # "stated" | "derived" | "conflict"
     low: float | None  # None: unbounded

@@ -39,8 +39,10 @@ import math
 import re
 from dataclasses import dataclass
 
-import numpy as np
-from numpy.typing import ArrayLike, NDArray
+from typing import TYPE_CHECKING
+
+if TYPE_CHECKING:  # numpy is imported only for array arguments: a scalar wavelength needs none
+    from numpy.typing import ArrayLike, NDArray
 
 __all__ = [
     "FORMULAS",
@@ -347,15 +349,38 @@ def _resolve(material: MaterialLike) -> Material:
     return lookup(material) if isinstance(material, str) else material
 
 
-def _as_um(wavelength_m: ArrayLike) -> NDArray[np.float64]:
+def _scalar(x) -> bool:
+    return isinstance(x, (int, float)) and not isinstance(x, bool)
+
+
+def _as_um(wavelength_m: ArrayLike) -> float | NDArray:
+    if _scalar(wavelength_m):
+        if not (math.isfinite(wavelength_m) and wavelength_m > 0):
+            raise ValueError("wavelength must be finite and > 0 (metres)")
+        return float(wavelength_m) * _UM_PER_M
+    import numpy as np
+
     lam = np.asarray(wavelength_m, dtype=float)
     if np.any(~np.isfinite(lam)) or np.any(lam <= 0):
         raise ValueError("wavelength must be finite and > 0 (metres)")
     return lam * _UM_PER_M
 
 
-def _out(value: NDArray[np.float64]) -> float | NDArray[np.float64]:
+def _out(value) -> float | NDArray:
+    if isinstance(value, float):
+        return value
+    import numpy as np
+
     return float(value) if np.ndim(value) == 0 else value
+
+
+def _times(a, b):
+    """a × b for floats or arrays (numpy only for arrays)."""
+    if _scalar(a) and _scalar(b):
+        return float(a) * float(b)
+    import numpy as np
+
+    return np.asarray(a, float) * np.asarray(b, float)
 
 
 def _index_derivatives(
@@ -375,10 +400,8 @@ def _index_derivatives(
     """
     b_terms, c_terms = _rational_terms(material)
     x = lam_um**2
-    f = np.zeros_like(x)
-    f1 = np.zeros_like(x)
-    f2 = np.zeros_like(x)
-    f3 = np.zeros_like(x)
+    # zeros of the argument's kind (float or array); four separate objects, as += works in place
+    f, f1, f2, f3 = x * 0.0, x * 0.0, x * 0.0, x * 0.0
     for b, c in zip(b_terms, c_terms):
         d = x - c
         f += b * x / d
@@ -390,7 +413,7 @@ def _index_derivatives(
     g3 = 12.0 * lam_um * f2 + 8.0 * lam_um**3 * f3
     if material.formula == "ciddor_air":
         return 1.0 + f, g1, g2, g3
-    n = np.sqrt(1.0 + f)
+    n = (1.0 + f) ** 0.5
     n1 = g1 / (2.0 * n)
     n2 = (g2 - 2.0 * n1**2) / (2.0 * n)
     n3 = (g3 - 6.0 * n1 * n2) / (2.0 * n)
@@ -428,16 +451,14 @@ def gvd(
     _, _, n2_um, _ = _index_derivatives(mat, lam_um)
     lam = lam_um / _UM_PER_M
     d2n = n2_um * _UM_PER_M**2  # per um^2 -> per m^2
-    return _out(lam**3 / (2.0 * np.pi * c**2) * d2n)
+    return _out(lam**3 / (2.0 * math.pi * c**2) * d2n)
 
 
 def gdd(
     material: MaterialLike, wavelength_m: ArrayLike, thickness_m: ArrayLike, c: float
 ) -> float | NDArray[np.float64]:
     """Group-delay dispersion of a plate, GVD x thickness, in s^2."""
-    return _out(
-        np.asarray(gvd(material, wavelength_m, c)) * np.asarray(thickness_m, float)
-    )
+    return _out(_times(gvd(material, wavelength_m, c), thickness_m))
 
 
 def tod(
@@ -455,8 +476,8 @@ def tod(
     lam = lam_um / _UM_PER_M
     d2n = n2_um * _UM_PER_M**2
     d3n = n3_um * _UM_PER_M**3
-    beta3 = -(lam**4) / (4.0 * np.pi**2 * c**3) * (3.0 * d2n + lam * d3n)
-    return _out(beta3 * np.asarray(thickness_m, float))
+    beta3 = -(lam**4) / (4.0 * math.pi**2 * c**3) * (3.0 * d2n + lam * d3n)
+    return _out(_times(beta3, thickness_m))
 
 
 def in_range(material: MaterialLike, wavelength_m: ArrayLike) -> bool:
@@ -464,4 +485,8 @@ def in_range(material: MaterialLike, wavelength_m: ArrayLike) -> bool:
     mat = _resolve(material)
     lam_um = _as_um(wavelength_m)
     lo, hi = mat.valid_range_um
+    if _scalar(lam_um):
+        return lo <= lam_um <= hi
+    import numpy as np
+
     return bool(np.all((lam_um >= lo) & (lam_um <= hi)))

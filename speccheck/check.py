@@ -576,10 +576,9 @@ class _BlockCheck:
                 ref = value if value is not None else (low if low is not None else high)
                 unit = choose_unit(self.c.units, ref, quantity.display_unit)
                 out[q] = Cell("derived", low, high, value, quantity.si_unit, unit)
-        used_relations = d.state.via_any(self.net.index[c] for c in out)
+        derived_from = [self.net.index[c] for c in out]
         for q, value in DEFAULTS.items():
-            used = any(q in BY_ID[r].quantities() for r in used_relations)
-            if q not in out and used:
+            if q not in out and d.state.uses_quantity(derived_from, self.net.index[q]):
                 out[q] = Cell("derived", value, value, value, BY_NAME[q].si_unit, "1", assumed=True)
         return {q: out[q] for q in names if q in out}
 

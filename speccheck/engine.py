@@ -39,6 +39,7 @@ class Network:
     touching: tuple[tuple[int, ...], ...]  # var -> relations it takes part in
     # per relation, per unknown j: (j, e_j, ((k, e_k) for the other terms))
     solved: tuple = ()
+    in_relations: tuple = ()  # var -> bit mask of the relations it takes part in
 
 
 def compile_network(names: tuple[str, ...], context: Context,
@@ -54,7 +55,9 @@ def compile_network(names: tuple[str, ...], context: Context,
             touching[i].append(r)
     solved = tuple(tuple((j, ej, tuple((k, ek) for k, ek in terms if k != j)) for j, ej in terms)
                    for _, terms, _ in compiled)
-    return Network(tuple(names), index, tuple(compiled), tuple(tuple(t) for t in touching), solved)
+    in_relations = tuple(sum(1 << r for r in t) for t in touching)
+    return Network(tuple(names), index, tuple(compiled), tuple(tuple(t) for t in touching), solved,
+                   in_relations)
 
 
 def _members(mask: int) -> frozenset:
@@ -95,12 +98,12 @@ class State:
     def via(self, i: int) -> frozenset:
         return frozenset(self.net.relations[r][0].id for r in _members(self.lo_via[i] | self.hi_via[i]))
 
-    def via_any(self, indices) -> frozenset:
-        """The relations any of these quantities was derived through."""
+    def uses_quantity(self, indices, var: int) -> bool:
+        """Whether any of these quantities was derived through a relation that involves ``var``."""
         mask = 0
         for i in indices:
             mask |= self.lo_via[i] | self.hi_via[i]
-        return frozenset(self.net.relations[r][0].id for r in _members(mask))
+        return bool(mask & self.net.in_relations[var])
 
     def known(self, i: int) -> bool:
         return self.lo[i] > -math.inf or self.hi[i] < math.inf

@@ -274,9 +274,10 @@ def choose_unit(units: UnitSystem, si_value: float, display_unit: str, keep: boo
     number; with ``keep`` (a unit the user chose) it is kept while the number reads well."""
     if display_unit in _FIXED or not math.isfinite(si_value) or si_value == 0:
         return display_unit
-    # The choice depends only on the number's order of magnitude (and its first digits near
-    # a boundary): cache it by the value rounded to three significant digits.
-    return _choose_unit(units, float(f"{si_value:.3g}"), display_unit, keep)
+    # The choice depends only on the number's order of magnitude (its first digits matter only
+    # near a prefix boundary): cache it by log10 of the value in steps of 1/10000 of a decade.
+    step = round(math.log10(abs(si_value)) * 1e4)
+    return _choose_unit(units, math.copysign(10.0 ** (step / 1e4), si_value), display_unit, keep)
 
 
 @lru_cache(maxsize=8192)

@@ -19,6 +19,7 @@ from pathlib import Path
 
 from . import __version__
 from .findings import FileResult, Finding
+from .loader import Limits
 
 SPEC_SUFFIXES = (".yaml", ".yml")
 
@@ -51,6 +52,13 @@ def _parser() -> argparse.ArgumentParser:
     c.add_argument("--no-color", action="store_true", help="never colour the output (also: NO_COLOR=1)")
     c.add_argument("--color", action="store_true", help="colour the output even when it is not a terminal")
     c.add_argument("--no-sheet", action="store_true", help="human format: findings only, no sheet")
+    limits = c.add_argument_group("input limits (each file that exceeds one gets an input-limit finding)")
+    limits.add_argument("--max-file-size", type=_positive_int, default=Limits.max_bytes, metavar="BYTES",
+                        help=f"largest spec file read (default {Limits.max_bytes})")
+    limits.add_argument("--max-nodes", type=_positive_int, default=Limits.max_nodes, metavar="N",
+                        help=f"most YAML nodes in a document, aliases expanded (default {Limits.max_nodes})")
+    limits.add_argument("--max-depth", type=_positive_int, default=Limits.max_depth, metavar="N",
+                        help=f"deepest nesting of mappings and lists (default {Limits.max_depth})")
     sub.add_parser("rules", help="list every rule with its id, severity and summary")
     e = sub.add_parser("explain", help="explain a rule: the physics, the source, examples")
     e.add_argument("rule", metavar="RULE-ID")
@@ -66,6 +74,16 @@ def _parser() -> argparse.ArgumentParser:
 
 
 _GLOB = re.compile(r"[*?[]")
+
+
+def _positive_int(text: str) -> int:
+    try:
+        value = int(text)
+    except ValueError:
+        raise argparse.ArgumentTypeError(f"expected a whole number, got {text!r}") from None
+    if value < 1:
+        raise argparse.ArgumentTypeError(f"expected a number of at least 1, got {value}")
+    return value
 
 
 @dataclasses.dataclass
@@ -210,7 +228,8 @@ def _check(args, stdout, stderr) -> int:
         return 2
     units = UnitSystem()
     tolerance = config.tolerance if config.tolerance is not None else DEFAULT_TOLERANCE
-    checker = Checker(units, Options(default_tolerance=tolerance), read=read_beside)
+    limits = Limits(max_bytes=args.max_file_size, max_nodes=args.max_nodes, max_depth=args.max_depth)
+    checker = Checker(units, Options(limits=limits, default_tolerance=tolerance), read=read_beside)
     results: list[FileResult] = []
     io_failure = bool(expansion.unmatched)
     for name, path in expansion.files:

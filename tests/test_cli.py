@@ -140,3 +140,13 @@ def test_review_says_what_is_consistent_impossible_and_implied():
     # By hand: 2 × 530 kW / (π (0.1 cm)²) = 3.37e7 W/cm².
     assert "the peak intensity this spec implies is 3.37" in text
     assert "No claim contradicts another." in text
+
+
+def test_input_limits_can_be_set_on_the_command_line(tmp_path):
+    spec = tmp_path / "deep.yaml"
+    spec.write_text("spec_version: 1\nlaser: {}\ntitle: " + "[" * 10 + "]" * 10 + "\n")
+    code, out, _ = cli("check", "--format", "json", "--max-depth", "5", str(spec))
+    assert code == 1 and "input-limit" in [f["rule"] for f in json.loads(out)["files"][0]["findings"]]
+    code, out, _ = cli("check", "--format", "json", "--max-file-size", "20", str(spec))
+    assert "more than the limit of 20" in json.loads(out)["files"][0]["findings"][0]["message"]
+    assert cli("check", "--max-nodes", "0", str(spec))[0] == 2  # a usage error

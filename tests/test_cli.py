@@ -150,3 +150,27 @@ def test_input_limits_can_be_set_on_the_command_line(tmp_path):
     code, out, _ = cli("check", "--format", "json", "--max-file-size", "20", str(spec))
     assert "more than the limit of 20" in json.loads(out)["files"][0]["findings"][0]["message"]
     assert cli("check", "--max-nodes", "0", str(spec))[0] == 2  # a usage error
+
+
+def test_no_command_or_format_changes_an_input_file(tmp_path):
+    import shutil
+
+    from speccheck.formats import FORMATS
+
+    specs = tmp_path / "specs"
+    shutil.copytree(EXAMPLES, specs, copy_function=shutil.copy2)  # keeps the mtimes
+
+    def snapshot():
+        return {p.relative_to(specs): (p.read_bytes(), p.stat().st_mtime_ns)
+                for p in sorted(specs.rglob("*")) if p.is_file()}
+
+    before = snapshot()
+    out_dir = tmp_path / "out"
+    out_dir.mkdir()
+    for fmt in FORMATS:
+        assert cli("check", "--format", fmt, "-o", str(out_dir / f"report.{fmt}"), str(specs))[0] in (0, 1)
+    assert cli("check", "--review", str(specs))[0] in (0, 1)
+    for argv in (("rules",), ("explain", "relation-conflict"), ("relations",), ("schema",),
+                 ("new", "-o", str(out_dir / "new.yaml"))):
+        assert cli(*argv)[0] == 0
+    assert snapshot() == before  # same files, same bytes, same modification times, nothing added

@@ -39,7 +39,7 @@ def _numeric_duration(tau0: float, total_gdd: float) -> float:
 
 
 def test_gaussian_tbp_constant() -> None:
-    # 2 ln2 / pi = 0.4413 (Gaussian time-bandwidth product, textbook value).
+    # 2 ln2 / pi = 0.4413 (Gaussian time-bandwidth product, published pulse-shape tables).
     assert d.GAUSSIAN_TBP == pytest.approx(0.4413, abs=1e-4)
 
 

@@ -222,6 +222,11 @@ class _Chain:
                 self.damage(name, stage["damage_threshold"], incident, here)
             if kind.name == "splitter":
                 self.split(name, stage, params, beam, here, columns)
+                if isinstance(target, dict) and target:
+                    self.report.add("target-unknown",
+                                    f"the path splits at {name!r}, so this target has no single end; give each "
+                                    "branch its own target under branches: {…: {target: …}}", target_at,
+                                    key=True)
                 return
         self.finish(columns, beam, target, target_at)
 

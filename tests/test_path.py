@@ -207,3 +207,10 @@ def test_the_json_sheet_has_one_entry_per_stage_in_path_order(tmp_path):
     out = io.StringIO()
     cli_run(["check", "--format", "json", str(spec)], stdout=out, stderr=io.StringIO())
     assert list(json.loads(out.getvalue())["files"][0]["sheet"]) == ["laser", "a", "b"]
+
+
+def test_a_target_before_a_split_is_reported_not_ignored(check):
+    r = run(check, "  - name: bs\n    kind: splitter\n    ratio: 50%\n    branches:\n"
+                   "      a: {path: [{name: a1, kind: optic}]}\n      b: {path: []}\n",
+            "  peak_power: '>= 1 GW'\n")
+    assert ("target-unknown", 18) in rules_of(r)

@@ -145,7 +145,7 @@ class Checker:
                     merged[key] = value
                     paths[key] = ("operating_points", i, key)
             paths[""] = ("operating_points", i)
-            check = _BlockCheck(self, name, merged, tolerance, report, paths)
+            check = _BlockCheck(self, name, merged, tolerance, report, paths, notes=False)  # noted once, at the laser
             sheet[name] = check.run()
             self._sheet_limits(name, block, point, i, check, report)
         report.dedupe = False

@@ -12,6 +12,7 @@ their branch, and a missed target names the stage that costs the most.
 from __future__ import annotations
 
 import math
+from dataclasses import replace
 
 from . import hazards
 from .findings import Cell
@@ -33,7 +34,7 @@ def _value(cell: Cell) -> tuple:
 def beam_from(cells: dict, old: Beam | None, shape_limit: float) -> Beam:
     values = {q: _value(cells[q]) for q in CARRIED if q in cells}
     if old is not None:
-        return Beam(values, old.net_gdd, old.tl_duration)
+        return replace(old, values=values, stage_gdd=None)
     if "transform_limited_duration" in cells:
         tl = _value(cells["transform_limited_duration"])
     elif "spectral_bandwidth" in cells and typical(values["spectral_bandwidth"]):
@@ -77,9 +78,9 @@ class _Chain:
         from . import materials
 
         shape = PULSE_SHAPES.get(self.categorical.get("pulse_shape"), PULSE_SHAPES[DEFAULT_SHAPE])
-        return StageContext(self.c.units.constants.c, shape.transform_limit,
-                            lambda m, lam: float(materials.gvd(m, lam, self.c.units.constants.c)),
-                            notes.append)
+        c = self.c.units.constants.c
+        return StageContext(c, shape.transform_limit, gvd=lambda m, lam: float(materials.gvd(m, lam, c)),
+                            tod=lambda m, lam, length: float(materials.tod(m, lam, length, c)), note=notes.append)
 
     def params(self, stage: dict, kind, at: tuple, name: str) -> dict | None:
         out: dict = {}
@@ -167,6 +168,8 @@ class _Chain:
             if beam.stage_gdd is not None:
                 cells["stage_gdd"] = _gdd_cell(beam.stage_gdd)
             cells["net_gdd"] = _gdd_cell(beam.net_gdd)
+        if beam.net_tod != (0.0, 0.0, 0.0):
+            cells["net_tod"] = Cell("derived", beam.net_tod[0], beam.net_tod[2], beam.net_tod[1], "s^3", "fs^3")
         return cells
 
     # ---------------------------------------------------------------- run
@@ -258,7 +261,7 @@ class _Chain:
             share = shares[k]
             values = {q: scaled(beam.get(q), share) if q in ("pulse_energy", "average_power") else v
                       for q, v in beam.values.items()}
-            branch_beam = Beam(values, beam.net_gdd, beam.tl_duration)
+            branch_beam = replace(beam, values=values, stage_gdd=None)
             label = str(branch)
             if label in self.sheet:
                 self.report.add("duplicate-name", f"branch {label!r} has the name of another column",

@@ -11,7 +11,9 @@ table, so a stage only says what it changes.
 Pulse duration after dispersion uses the Gaussian closed form
 τ = τ_TL √(1 + (4 ln2 φ / τ_TL²)²) with the accumulated GDD φ (see
 ``dispersion.py``); for other pulse shapes it is an approximation, and the
-finding says so.  A laser pulse longer than its transform limit is taken to
+finding says so.  Third-order dispersion (a stage's ``tod``, and the TOD of
+each material from its Sellmeier equation) is accumulated and reported as
+``net_tod``, but not folded into the duration.  A laser pulse longer than its transform limit is taken to
 carry positive chirp (common practice: normal dispersion in the source).
 """
 
@@ -57,6 +59,7 @@ class Beam:
     net_gdd: Value = (0.0, 0.0, 0.0)  # s², relative to the transform limit (may be negative)
     tl_duration: Value | None = None  # s
     stage_gdd: Value | None = None  # s², what the last stage added
+    net_tod: Value = (0.0, 0.0, 0.0)  # s³, accumulated third-order dispersion (reported, not in τ)
 
     def get(self, q: str) -> Value | None:
         return self.values.get(q)
@@ -126,6 +129,7 @@ class StageContext:
     c: float
     transform_limit: float  # of the pulse shape
     gvd: Callable[[str, float], float]  # (material, wavelength m) -> s²/m
+    tod: Callable[[str, float, float], float] = field(default=lambda m, lam, length: 0.0)  # -> s³
     note: Callable[[str], None] = field(default=lambda text: None)
 
 
@@ -168,16 +172,21 @@ def _amplifier(beam, p, ctx):
                                if beam.get(q)})
 
 
-def _add_gdd(beam: Beam, gdd: Value, ctx) -> Beam:
-    net = (beam.net_gdd[0] + gdd[0], beam.net_gdd[1] + gdd[1], beam.net_gdd[2] + gdd[2])
-    beam = replace(beam, net_gdd=net, stage_gdd=gdd)
+def _sum(a: Value, b: Value) -> Value:
+    return (a[0] + b[0], a[1] + b[1], a[2] + b[2])
+
+
+def _add_gdd(beam: Beam, gdd: Value, ctx, tod: Value | None = None) -> Beam:
+    net = _sum(beam.net_gdd, gdd)
+    beam = replace(beam, net_gdd=net, stage_gdd=gdd,
+                   net_tod=_sum(beam.net_tod, tod) if tod is not None else beam.net_tod)
     if beam.tl_duration is not None:
         beam = beam.with_values(pulse_duration=duration_after(beam.tl_duration, net))
     return beam
 
 
 def _dispersion(beam, p, ctx):
-    return _add_gdd(beam, p["gdd"], ctx)
+    return _add_gdd(beam, p["gdd"], ctx, p.get("tod"))
 
 
 def _material(beam, p, ctx):
@@ -189,7 +198,9 @@ def _material(beam, p, ctx):
     thickness = p["thickness"]
     gdd = tuple(sorted((gvd * thickness[0], gvd * thickness[2]))) if gvd else (0.0, 0.0)
     value = (gdd[0], gvd * thickness[1], gdd[1])
-    return replace(_add_gdd(_transmit(beam, p["transmission"]), value, ctx), stage_gdd=value)
+    tod = ctx.tod(p["material"], typical(lam), thickness[1])
+    tod_value = tuple(sorted((tod / thickness[1] * thickness[0], tod / thickness[1] * thickness[2])))
+    return _add_gdd(_transmit(beam, p["transmission"]), value, ctx, (tod_value[0], tod, tod_value[1]))
 
 
 def _compressor(beam, p, ctx):
@@ -211,8 +222,9 @@ def _harmonic(beam, p, ctx):
     ctx.note(f"duration and bandwidth of the harmonic taken as τ/√{n} and √{n}·Δν (Gaussian pulse, "
              "undepleted pump, no group-velocity mismatch: common practice)")
     tl = scaled(beam.tl_duration, point(1.0 / root)) if beam.tl_duration else None
-    net = tuple(x / n for x in beam.net_gdd)
-    return replace(beam.with_values(**changes), tl_duration=tl, net_gdd=net)
+    net = tuple(x / n for x in beam.net_gdd)  # the harmonic's spectral phase: φ2 / n, φ3 / n²
+    tod = tuple(x / n**2 for x in beam.net_tod)
+    return replace(beam.with_values(**changes), tl_duration=tl, net_gdd=net, net_tod=tod)
 
 
 def _parametric(beam, p, ctx):
@@ -228,7 +240,8 @@ def _parametric(beam, p, ctx):
     changes["spectral_bandwidth"] = None  # not known from the pump
     ctx.note("the output pulse is taken to be as long as the pump (common practice for a first estimate)")
     beam = beam.with_values(**changes)
-    return replace(beam, tl_duration=beam.get("pulse_duration"), net_gdd=(0.0, 0.0, 0.0))
+    return replace(beam, tl_duration=beam.get("pulse_duration"), net_gdd=(0.0, 0.0, 0.0),
+                   net_tod=(0.0, 0.0, 0.0))
 
 
 def _difference(a: Value, b: Value) -> Value:

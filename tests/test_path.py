@@ -214,3 +214,16 @@ def test_a_target_before_a_split_is_reported_not_ignored(check):
                    "      a: {path: [{name: a1, kind: optic}]}\n      b: {path: []}\n",
             "  peak_power: '>= 1 GW'\n")
     assert ("target-unknown", 18) in rules_of(r)
+
+
+def test_third_order_dispersion_is_accumulated_and_reported(check, units):
+    from speccheck import materials
+
+    # TOD of 10 mm fused silica at 800 nm from its Sellmeier equation (27.5 fs³/mm, Malitson 1965,
+    # checked in test_materials.py) plus a stage's own 1000 fs³.
+    r = run(check, "  - {name: w, kind: material, material: fused_silica, thickness: 10 mm}\n"
+                   "  - {name: d, kind: dispersion, gdd: -300 fs^2, tod: 1000 fs^3}\n")
+    glass = materials.tod("fused_silica", 800e-9, 0.01, units.constants.c)
+    assert glass == pytest.approx(275e-45, rel=0.01)
+    assert cell(r, "net_tod", "w").value == pytest.approx(glass)
+    assert cell(r, "net_tod", "d").value == pytest.approx(glass + 1000e-45)

@@ -174,3 +174,13 @@ def test_no_command_or_format_changes_an_input_file(tmp_path):
                  ("new", "-o", str(out_dir / "new.yaml"))):
         assert cli(*argv)[0] == 0
     assert snapshot() == before  # same files, same bytes, same modification times, nothing added
+
+
+def test_the_json_writer_gives_the_document_exactly(checker):
+    # The writer streams the sheet as text; it must say what document() says, number for number.
+    from speccheck.formats import json_format
+
+    results = [checker.check_text(p.read_bytes(), p.name) for p in sorted(EXAMPLES.glob("*.yaml"))]
+    out = io.StringIO()
+    json_format.write(results, out)
+    assert json.loads(out.getvalue()) == json.loads(json.dumps(json_format.document(results)))

@@ -57,8 +57,55 @@ def document(results: list[FileResult]) -> dict:
     }
 
 
+def _dumps(value) -> str:
+    return json.dumps(value, ensure_ascii=False, allow_nan=False)
+
+
+def _number_text(x: float | None) -> str:
+    """The JSON text of ``_num(x)``, written directly (the sheet holds most of the numbers)."""
+    if x is None:
+        return "null"
+    if x == 0.0:
+        return "0.0"
+    text = "%.15g" % x
+    return text if text not in ("inf", "-inf") else repr(x)
+
+
+class _SheetWriter:
+    """The sheet as JSON text: the same document as ``document()`` gives, without building
+    a dict per cell first (a sheet has thousands of cells; this is the writer's hot loop)."""
+
+    def __init__(self) -> None:
+        self.strings: dict[str, str] = {}
+
+    def string(self, text: str) -> str:
+        out = self.strings.get(text)
+        if out is None:
+            out = self.strings[text] = _dumps(text)
+        return out
+
+    def cell(self, c: Cell) -> str:
+        n = _number_text
+        text = (f'{{"status":"{c.status}","value":{n(c.value)},"low":{n(c.low)},"high":{n(c.high)},'
+                f'"unit":{self.string(c.unit)},"display_unit":{self.string(c.display_unit)}')
+        if c.status == "conflict":
+            text += f',"implied_low":{n(c.implied_low)},"implied_high":{n(c.implied_high)}'
+        if c.assumed:
+            text += ',"assumed":true'
+        return text + "}"
+
+    def sheet(self, sheet: dict) -> str:
+        return "{" + ",".join(
+            f"{self.string(block)}:{{" + ",".join(f"{self.string(q)}:{self.cell(c)}" for q, c in cells.items()) + "}"
+            for block, cells in sheet.items()) + "}"
+
+
 def write(results: list[FileResult], out, options=None) -> None:
-    # Compact, so that the C encoder writes it (several times faster than indenting);
-    # pipe through `python -m json.tool` to read it.
-    out.write(json.dumps(document(results), ensure_ascii=False, allow_nan=False))
-    out.write("\n")
+    # Compact, so that it is fast; pipe through `python -m json.tool` to read it.
+    sheets = _SheetWriter()
+    out.write(f'{{"version":{VERSION},"files":[')
+    for i, r in enumerate(results):
+        head = {"path": r.path, "title": r.title, "findings": [finding_dict(f) for f in r.findings]}
+        out.write(("," if i else "") + _dumps(head)[:-1] + ',"sheet":' + sheets.sheet(r.sheet) + "}")
+    counts = {s: sum(r.count(s) for r in results) for s in SEVERITIES}
+    out.write('],"counts":' + _dumps(counts) + "}\n")

@@ -338,7 +338,7 @@ def _explain(rule_id: str, stdout, stderr) -> int:
         stdout.write("\nSource: each relation's own; `speccheck relations` lists them\n")
         stdout.write("\nRelations:\n" + "".join(f"  {x.id:<24} {x.formula}\n" for x in RELATIONS))
     else:
-        source = source_of(r.explanation)
+        source = r.source or source_of(r.explanation)
         if source:
             stdout.write(f"\nSource: {source}\n")
     if r.failing:

@@ -9,7 +9,7 @@ fails loudly.
 
 from __future__ import annotations
 
-from dataclasses import dataclass
+from dataclasses import dataclass, replace
 
 from .findings import SEVERITIES
 
@@ -22,6 +22,7 @@ class Rule:
     explanation: str
     failing: str = ""
     passing: str = ""
+    source: str = ""  # where the rule's physics or number comes from ("common practice" for a rule of thumb)
 
     def __post_init__(self) -> None:
         if self.severity not in SEVERITIES:
@@ -237,6 +238,39 @@ _RULES = (
          "wavelength: 800 nm  # speccheck: allow sub-cycle-pulse -- a few-cycle source",
          "wavelength: 800 nm"),
 )
+
+# The source of each physics rule, shown by `speccheck explain` (values recalled rather than
+# looked up say "from memory").
+_SOURCES = {
+    "below-transform-limit": "Fourier transform limit; pulse-shape tables, e.g. J.-C. Diels & W. Rudolph, "
+                             "Ultrashort Laser Pulse Phenomena, 2nd ed. (2006), ch. 9 (from memory)",
+    "strongly-chirped": "common practice",
+    "pulse-longer-than-period": "definition of the duty cycle",
+    "sub-cycle-pulse": "definition: N = τ c / λ",
+    "outside-ultrafast-range": "the scope of speccheck (femtosecond to picosecond pulses)",
+    "m2-below-one": "ISO 11146 (beam widths and propagation ratios)",
+    "self-focusing": "J. H. Marburger, Prog. Quantum Electron. 4, 35 (1975); n2 values: the material table",
+    "self-focusing-risk": "J. H. Marburger, Prog. Quantum Electron. 4, 35 (1975)",
+    "self-focusing-air": "J. H. Marburger (1975); n2 of air: E. T. J. Nibbering et al., J. Opt. Soc. Am. B 14, "
+                         "650 (1997); Yu. E. Geints et al., Appl. Phys. Lett. 99, 181114 (2011)",
+    "b-integral": "common practice in amplifier design",
+    "optic-damage": "the optic's own rating; √(τ/τ_ref) scaling above about 10 ps: common practice",
+    "optic-damage-margin": "common practice (a safety factor of 2)",
+    "damage-rating-not-transferable": "common practice",
+    "spot-below-diffraction-limit": "Gaussian-beam optics (paraxial): 1/e² spot diameter 4 M² λ f / (π D)",
+    "non-paraxial-focus": "Gaussian-beam optics: the paraxial approximation needs w0 ≫ λ/π",
+    "strong-field-figures": "L. V. Keldysh, Sov. Phys. JETP 20, 1307 (1965); P. B. Corkum, Phys. Rev. Lett. 71, "
+                            "1994 (1993); ionization energies: NIST Atomic Spectra Database (from memory)",
+    "relativistic-intensity": "a0 = e E / (m_e ω c) ≈ 0.855 λ[µm] √(I / 10^18 W/cm²) (published rule)",
+    "laser-safety": "IEC 60825-1; ANSI Z136.1; your laser safety officer",
+    "photon-energy-not-conserved": "photon-energy conservation, 1/λp = 1/λs + 1/λi",
+    "dispersion-compensation": "Gaussian pulse with a quadratic spectral phase",
+    "assumed-shape": "pulse-shape tables (see below-transform-limit)",
+}
+_RULES = tuple(replace(r, source=_SOURCES.get(r.id, r.source)) for r in _RULES)
+unknown = set(_SOURCES) - {r.id for r in _RULES}
+if unknown:  # pragma: no cover - table sanity
+    raise ValueError(f"sources for unknown rules: {sorted(unknown)}")
 
 RULES: dict[str, Rule] = {r.id: r for r in _RULES}
 

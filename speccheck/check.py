@@ -44,6 +44,7 @@ class _Report:
         self.findings: list[Finding] = []
         self.seen: set = set()
         self.dedupe = False
+        self.points: set[str] = set()  # names of the operating-point columns
 
     def add(self, rule_id: str, message: str, at=(), *, key: bool = False, line=None, column=None,
             quantities=(), suspect=None, candidates=(), cause=None) -> None:
@@ -97,7 +98,8 @@ class Checker:
             if sheet:
                 self._safety(data, sheet, report)
         findings = tuple(sorted(report.findings, key=Finding.sort_key))
-        return FileResult(path, findings, sheet, title, shape, shape_stated, ends)
+        points = tuple(name for name in sheet if name in report.points)
+        return FileResult(path, findings, sheet, title, shape, shape_stated, ends, points)
 
     def _safety(self, data: dict, sheet: dict, report: _Report) -> None:
         from . import safety
@@ -147,6 +149,7 @@ class Checker:
             paths[""] = ("operating_points", i)
             check = _BlockCheck(self, name, merged, tolerance, report, paths, notes=False)  # noted once, at the laser
             sheet[name] = check.run()
+            report.points.add(name)
             self._sheet_limits(name, block, point, i, check, report)
         report.dedupe = False
 

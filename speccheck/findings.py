@@ -55,6 +55,7 @@ class FileResult:
     pulse_shape: str | None = None  # the laser's pulse shape as the check used it
     pulse_shape_stated: bool = False  # False: not stated, the default was assumed
     branch_ends: tuple[str, ...] = ()  # the column that ends each branch of the beam path
+    operating_points: tuple[str, ...] = ()  # the columns that are operating points of a maker's sheet
 
     def count(self, severity: str) -> int:
         return sum(1 for f in self.findings if f.severity == severity)

@@ -184,3 +184,10 @@ def test_the_json_writer_gives_the_document_exactly(checker):
     out = io.StringIO()
     json_format.write(results, out)
     assert json.loads(out.getvalue()) == json.loads(json.dumps(json_format.document(results)))
+
+
+def test_review_of_a_path_speaks_of_its_end_not_of_every_stage():
+    code, out, _ = cli("check", "--review", str(EXAMPLES / "proposal-focus-path.yaml"))
+    text = " ".join(out.split())
+    assert "at the end of the path ('lens')" in text and "'periscope'" not in text
+    assert "operating point" not in text

@@ -38,7 +38,14 @@ def write(results: list[FileResult], out, options) -> None:
             q for f in result.findings if f.severity == "error" and f.rule != "relation-conflict"
             for q in f.quantities}
         for column, cells in result.sheet.items():
-            where = "" if column == "laser" else f" at operating point {column!r}"
+            if column == "laser":
+                where = ""
+            elif column in result.operating_points:
+                where = f" at operating point {column!r}"
+            elif column in result.branch_ends:
+                where = f" at the end of the path ({column!r})"
+            else:
+                continue  # a stage inside the path: the full sheet is in the other formats
             good = [f"{q} {c.text}" for q, c in cells.items()
                     if c.status == "stated" and f"{column}.{q}" not in flagged]
             if good:

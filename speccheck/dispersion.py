@@ -29,8 +29,10 @@ from __future__ import annotations
 
 import math
 
-import numpy as np
-from numpy.typing import ArrayLike, NDArray
+from typing import TYPE_CHECKING
+
+if TYPE_CHECKING:  # numpy is imported only for array arguments: scalars are plain floats
+    from numpy.typing import ArrayLike, NDArray
 
 __all__ = [
     "GAUSSIAN_TBP",
@@ -48,11 +50,25 @@ GAUSSIAN_TBP: float = 2.0 * math.log(2.0) / math.pi
 _FOUR_LN2 = 4.0 * math.log(2.0)
 
 
-def _out(value: NDArray[np.float64]) -> float | NDArray[np.float64]:
+def _scalar(*values) -> bool:
+    return all(isinstance(v, (int, float)) and not isinstance(v, bool) for v in values)
+
+
+def _out(value):
+    if isinstance(value, float):
+        return value
+    import numpy as np
+
     return float(value) if np.ndim(value) == 0 else value
 
 
-def _positive(name: str, value: ArrayLike) -> NDArray[np.float64]:
+def _positive(name: str, value: ArrayLike):
+    if _scalar(value):
+        if not (math.isfinite(value) and value > 0):
+            raise ValueError(f"{name} must be finite and > 0")
+        return float(value)
+    import numpy as np
+
     arr = np.asarray(value, dtype=float)
     if np.any(~np.isfinite(arr)) or np.any(arr <= 0):
         raise ValueError(f"{name} must be finite and > 0")
@@ -69,6 +85,10 @@ def broadened_duration(
     Gaussian formula is used as an approximation (see module docstring).
     """
     tau = _positive("tau_fwhm_s", tau_fwhm_s)
+    if _scalar(tau, gdd_s2):
+        return tau * math.sqrt(1.0 + (_FOUR_LN2 * gdd_s2 / tau**2) ** 2)
+    import numpy as np
+
     phi2 = np.asarray(gdd_s2, dtype=float)
     return _out(tau * np.sqrt(1.0 + (_FOUR_LN2 * phi2 / tau**2) ** 2))
 
@@ -80,6 +100,10 @@ def optimal_compensation(net_gdd_s2: ArrayLike) -> float | NDArray[np.float64]:
     quadratic phase is cancelled; TOD and higher orders remain). For an
     input that is already chirped, pass ``net_gdd_s2 + intrinsic_gdd(...)``.
     """
+    if _scalar(net_gdd_s2):
+        return -float(net_gdd_s2)
+    import numpy as np
+
     return _out(-np.asarray(net_gdd_s2, dtype=float))
 
 
@@ -92,6 +116,8 @@ def transform_limited_duration(
     = tau * GAUSSIAN_TBP / tbp. A TBP below the Gaussian limit is not
     physical for a Gaussian and raises ``ValueError``.
     """
+    import numpy as np
+
     tau = _positive("tau_fwhm_s", tau_fwhm_s)
     product = _positive("tbp", tbp)
     # small relative slack so a stated 0.441 counts as transform limited
@@ -115,6 +141,12 @@ def intrinsic_gdd(
     tau0 = _positive("tau_tl_s", tau_tl_s)
     if chirp_sign not in (1, -1):
         raise ValueError("chirp_sign must be +1 or -1")
+    if _scalar(tau, tau0):
+        if tau < tau0 * (1.0 - 1e-9):
+            raise ValueError("pulse duration shorter than its transform limit")
+        return chirp_sign * tau0**2 / _FOUR_LN2 * math.sqrt(max((tau / tau0) ** 2 - 1.0, 0.0))
+    import numpy as np
+
     if np.any(tau < tau0 * (1.0 - 1e-9)):
         raise ValueError("pulse duration shorter than its transform limit")
     ratio_sq = np.maximum((tau / tau0) ** 2 - 1.0, 0.0)
@@ -140,6 +172,8 @@ def chirped_output_duration(
     docstring). With tau_in = tau0 this reduces to
     :func:`broadened_duration`. Non-Gaussian shapes: approximation only.
     """
+    import numpy as np
+
     if (tau_tl_s is None) == (tbp is None):
         raise ValueError("give exactly one of tau_tl_s or tbp")
     tau0 = (

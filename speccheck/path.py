@@ -23,6 +23,9 @@ import math
 from dataclasses import dataclass, field, replace
 from typing import Callable
 
+from . import dispersion
+from .dispersion import broadened_duration
+
 CARRIED = ("wavelength", "repetition_rate", "pulse_energy", "average_power", "pulse_duration",
            "spectral_bandwidth", "beam_diameter", "m2")
 _FOUR_LN2 = 4.0 * math.log(2.0)
@@ -75,9 +78,9 @@ class Beam:
 
 
 def duration_after(tl: Value, gdd: Value) -> Value:
-    """τ = τ_TL √(1 + (4 ln2 φ/τ_TL²)²) over the corners of the two intervals."""
-    def tau(t0: float, phi: float) -> float:
-        return t0 * math.sqrt(1.0 + (_FOUR_LN2 * phi / t0**2) ** 2)
+    """τ = τ_TL √(1 + (4 ln2 φ/τ_TL²)²) (``dispersion.broadened_duration``) over the corners
+    of the two intervals."""
+    tau = broadened_duration
 
     corners = [tau(t0, phi) for t0 in (tl[0], tl[2]) for phi in (gdd[0], gdd[2]) if t0 > 0 and math.isfinite(t0)]
     # the shortest pulse for a given φ is at τ_TL = √(4 ln2 |φ|): include it when inside
@@ -96,7 +99,7 @@ def intrinsic_gdd(duration: Value, tl: Value) -> Value:
     t, t0 = typical(duration), typical(tl)
     if not t or not t0 or t <= t0:
         return (0.0, 0.0, 0.0)
-    phi = t0**2 / _FOUR_LN2 * math.sqrt((t / t0) ** 2 - 1.0)
+    phi = dispersion.intrinsic_gdd(t, t0)
     return (phi, phi, phi)
 
 

@@ -234,7 +234,7 @@ def phases(python: str, folder: Path, tmp: Path) -> None:
 
     script = tmp / "phases.py"
     script.write_text(PHASES, encoding="utf-8")
-    base = run(python, ["-c", "pass"], tmp)  # warm
+    run(python, ["-c", "pass"], tmp)  # warm
     import time
 
     t0 = time.perf_counter()

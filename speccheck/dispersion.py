@@ -77,7 +77,7 @@ def _positive(name: str, value: ArrayLike):
 
 def broadened_duration(
     tau_fwhm_s: ArrayLike, gdd_s2: ArrayLike
-) -> float | NDArray[np.float64]:
+) -> float | NDArray:
     """Output FWHM of a transform-limited Gaussian after GDD ``gdd_s2``.
 
     tau_out = tau_in sqrt(1 + (4 ln2 GDD / tau_in^2)^2). The sign of the GDD
@@ -93,7 +93,7 @@ def broadened_duration(
     return _out(tau * np.sqrt(1.0 + (_FOUR_LN2 * phi2 / tau**2) ** 2))
 
 
-def optimal_compensation(net_gdd_s2: ArrayLike) -> float | NDArray[np.float64]:
+def optimal_compensation(net_gdd_s2: ArrayLike) -> float | NDArray:
     """GDD that cancels a net GDD: simply ``-net_gdd_s2``.
 
     This returns a transform-limited input to its transform limit (only
@@ -109,7 +109,7 @@ def optimal_compensation(net_gdd_s2: ArrayLike) -> float | NDArray[np.float64]:
 
 def transform_limited_duration(
     tau_fwhm_s: ArrayLike, tbp: ArrayLike
-) -> float | NDArray[np.float64]:
+) -> float | NDArray:
     """Transform-limited Gaussian FWHM for a pulse with stated FWHM and TBP.
 
     The bandwidth is tbp / tau, so tau0 = GAUSSIAN_TBP / bandwidth
@@ -130,7 +130,7 @@ def transform_limited_duration(
 
 def intrinsic_gdd(
     tau_fwhm_s: ArrayLike, tau_tl_s: ArrayLike, chirp_sign: float = 1.0
-) -> float | NDArray[np.float64]:
+) -> float | NDArray:
     """GDD already carried by a linearly chirped Gaussian.
 
     phi_in = sign * tau0^2 / (4 ln2) * sqrt((tau / tau0)^2 - 1), with
@@ -160,7 +160,7 @@ def chirped_output_duration(
     tau_tl_s: ArrayLike | None = None,
     tbp: ArrayLike | None = None,
     chirp_sign: float = 1.0,
-) -> float | NDArray[np.float64]:
+) -> float | NDArray:
     """Output FWHM of a linearly chirped Gaussian after extra GDD ``gdd_s2``.
 
     Give the transform-limited duration either directly (``tau_tl_s``) or

@@ -384,8 +384,8 @@ def _times(a, b):
 
 
 def _index_derivatives(
-    material: Material, lam_um: NDArray[np.float64]
-) -> tuple[NDArray[np.float64], ...]:
+    material: Material, lam_um: NDArray
+) -> tuple[NDArray, ...]:
     """n and dn/dlambda, d2n/dlambda2, d3n/dlambda3 with lambda in um.
 
     With x = lambda^2 and g(lambda) = f(x):
@@ -422,7 +422,7 @@ def _index_derivatives(
 
 def refractive_index(
     material: MaterialLike, wavelength_m: ArrayLike
-) -> float | NDArray[np.float64]:
+) -> float | NDArray:
     """Phase refractive index n at the given wavelength(s) in metres."""
     mat = _resolve(material)
     n, _, _, _ = _index_derivatives(mat, _as_um(wavelength_m))
@@ -431,7 +431,7 @@ def refractive_index(
 
 def group_index(
     material: MaterialLike, wavelength_m: ArrayLike
-) -> float | NDArray[np.float64]:
+) -> float | NDArray:
     """Group index n_g = n - lambda dn/dlambda (dimensionless)."""
     mat = _resolve(material)
     lam_um = _as_um(wavelength_m)
@@ -441,7 +441,7 @@ def group_index(
 
 def gvd(
     material: MaterialLike, wavelength_m: ArrayLike, c: float
-) -> float | NDArray[np.float64]:
+) -> float | NDArray:
     """Group-velocity dispersion beta2 = lambda^3/(2 pi c^2) d2n/dlambda2 in s^2/m.
 
     ``c`` is the speed of light in m/s.
@@ -456,14 +456,14 @@ def gvd(
 
 def gdd(
     material: MaterialLike, wavelength_m: ArrayLike, thickness_m: ArrayLike, c: float
-) -> float | NDArray[np.float64]:
+) -> float | NDArray:
     """Group-delay dispersion of a plate, GVD x thickness, in s^2."""
     return _out(_times(gvd(material, wavelength_m, c), thickness_m))
 
 
 def tod(
     material: MaterialLike, wavelength_m: ArrayLike, thickness_m: ArrayLike, c: float
-) -> float | NDArray[np.float64]:
+) -> float | NDArray:
     """Third-order dispersion of a plate in s^3.
 
     TOD = d3(phi)/d(omega)3 = -lambda^4/(4 pi^2 c^3)

@@ -220,6 +220,8 @@ def _check(args, stdout, stderr) -> int:
     expansion = _spec_files(args.paths, cfg.Selector(config) if config.include or config.exclude else None)
     for pattern in expansion.unmatched:
         stderr.write(f"speccheck: no spec file matches {pattern!r}\n")
+    if not expansion.files:
+        stderr.write("speccheck: no spec files (*.yaml, *.yml) found in " + ", ".join(args.paths) + "\n")
     for name in expansion.skipped:
         stderr.write(f"speccheck: skipped {name}: left out by the include/exclude patterns of {config.path}\n")
     if args.output and any(_same_file(args.output, path) for _, path in expansion.files):

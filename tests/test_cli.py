@@ -191,3 +191,8 @@ def test_review_of_a_path_speaks_of_its_end_not_of_every_stage():
     text = " ".join(out.split())
     assert "at the end of the path ('lens')" in text and "'periscope'" not in text
     assert "operating point" not in text
+
+
+def test_a_folder_without_specs_says_so(tmp_path):
+    code, out, err = cli("check", str(tmp_path))
+    assert code == 0 and "no spec files" in err and "0 files" in out

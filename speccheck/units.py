@@ -64,7 +64,11 @@ def _table_path():
         return None
     base = os.environ.get("SPECCHECK_CACHE_DIR") or os.path.join(
         os.environ.get("XDG_CACHE_HOME") or os.path.join(os.path.expanduser("~"), ".cache"), "speccheck")
-    return Path(base) / f"units-{pint_version}.json"
+    from . import __version__
+
+    # keyed by both versions: a new speccheck may describe units differently, a new pint may
+    # carry new CODATA values
+    return Path(base) / f"units-{__version__}-pint{pint_version}.json"
 
 
 class UnitError(ValueError):
@@ -117,7 +121,7 @@ class UnitSystem:
 
     pint is imported only when it is needed.  What it answered (the CODATA constants, and
     each unit text's factor and dimension) is kept in a small table on disk
-    (``units-<pint version>.json`` in the user's cache folder; ``SPECCHECK_CACHE_DIR`` moves
+    (``units-<speccheck version>-pint<pint version>.json`` in the user's cache folder; ``SPECCHECK_CACHE_DIR`` moves
     it, ``SPECCHECK_NO_CACHE=1`` turns it off), so a later run that meets only known units
     never imports pint.  The values in that table are pint's, never typed in.
     """

@@ -70,12 +70,13 @@ def wrap(owner, name, label):
 
 wrap(chk, "load", "  YAML load (compose + own builder)")
 wrap(chk, "validate", "  schema validate (jsonschema + mapping)")
-block = getattr(chk, "_BlockCheck", None)
+import speccheck.block as blk
+block = blk.BlockCheck
 if block is not None:
     wrap(block, "run", "  block check, total")
     for m in ("parse_values", "report_conflicts", "cells", "report_limits", "report_assumptions"):
         wrap(block, m, f"    block: {m}")
-wrap(chk, "diagnose", "    block: diagnose (propagation)")
+wrap(blk, "diagnose", "    block: diagnose (propagation)")
 
 t0 = time.perf_counter()
 units = UnitSystem()

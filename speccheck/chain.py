@@ -2,7 +2,7 @@
 
 Each stage turns the beam of the column before into its own (``path.py``
 holds the physics of every stage kind); the column is then checked like the
-laser block by ``_BlockCheck``, with the carried values as given and the
+laser block by ``block.BlockCheck``, with the carried values as given and the
 stage's ``measured:`` values as stated (so a measurement that disagrees with
 the path is found).  A splitter ends a path and starts two named branches,
 each with its own path and target.  Targets are checked at the last column of
@@ -160,9 +160,9 @@ class _Chain:
                 block[key] = value
                 paths[key] = at + ("measured", key)
         paths[""] = at
-        from .check import _BlockCheck
+        from .block import BlockCheck
 
-        check = _BlockCheck(self.c, name, block, self.tolerance, self.report, paths, inherited, notes=False)
+        check = BlockCheck(self.c, name, block, self.tolerance, self.report, paths, inherited, notes=False)
         cells = check.run()
         if beam.net_gdd != (0.0, 0.0, 0.0) or beam.stage_gdd is not None:
             if beam.stage_gdd is not None:

@@ -51,8 +51,8 @@ import jsonschema, jsonschema.exceptions
 add("import jsonschema", time.perf_counter() - t0)
 t0 = time.perf_counter()
 import speccheck.cli as cli
-import speccheck.check as chk
-from speccheck.units import UnitSystem
+import speccheck.checking.document as chk
+from speccheck.reading.units import UnitSystem
 add("import speccheck (its own modules, yaml)", time.perf_counter() - t0)
 
 def wrap(owner, name, label):
@@ -70,7 +70,7 @@ def wrap(owner, name, label):
 
 wrap(chk, "load", "  YAML load (compose + own builder)")
 wrap(chk, "validate", "  schema validate (jsonschema + mapping)")
-import speccheck.block as blk
+import speccheck.checking.column as blk
 block = blk.BlockCheck
 if block is not None:
     wrap(block, "run", "  block check, total")
@@ -126,7 +126,7 @@ import copy, json, sys, time
 import yaml
 from jsonschema import Draft202012Validator
 
-from speccheck.fastschema import compile_schema  # the compiled checks speccheck ships
+from speccheck.reading.fastschema import compile_schema  # the compiled checks speccheck ships
 
 schema = json.load(open(sys.argv[1], encoding="utf-8"))
 docs = [yaml.load(open(p, "rb").read().decode("utf-8-sig"), Loader=yaml.CSafeLoader) for p in sys.argv[2:]]

@@ -1,3 +1,18 @@
-"""speccheck: a linter for ultrafast laser experiment specs."""
+"""speccheck: a linter for ultrafast laser experiment specs.
 
-__version__ = "0.1.0"
+The package is layered; each subpackage imports only from the ones above it in
+this list (``tests/test_layers.py`` enforces it):
+
+* ``physics``  – tables and pure functions on SI floats: quantities, relations, pulse shapes,
+  materials, dispersion, hazards, limits, the mistake catalogue, stage kinds;
+* ``records``  – the immutable records checks produce (findings, sheet cells) and the rule catalogue;
+* ``reading``  – text to data: the YAML loader, the schema, the value grammar, the units
+  boundary, the project configuration, suppressions, measured-data files;
+* ``checking`` – the generic engine, the column check, the path walk, the document checker;
+* ``formats``  – the output formats;
+* this package's top modules – the command line (``cli``) and the starter specs.
+"""
+
+from speccheck._version import __version__
+
+__all__ = ["__version__"]

@@ -1,3 +1,3 @@
-from .cli import main
+from speccheck.cli import main
 
 main()

@@ -17,9 +17,9 @@ import re
 import sys
 from pathlib import Path
 
-from . import __version__
-from .findings import FileResult, Finding
-from .loader import Limits
+from speccheck._version import __version__
+from speccheck.records.findings import FileResult, Finding
+from speccheck.reading.loader import Limits
 
 SPEC_SUFFIXES = (".yaml", ".yml")
 
@@ -29,8 +29,8 @@ def _parser() -> argparse.ArgumentParser:
                                 "units, physics consistency, and every number that follows.")
     p.add_argument("--version", action="version", version=f"speccheck {__version__}")
     sub = p.add_subparsers(dest="command", metavar="COMMAND")
-    from .formats import FORMATS
-    from .starter import KINDS
+    from speccheck.formats import FORMATS
+    from speccheck.starter import KINDS
 
     c = sub.add_parser("check", help="check spec files or folders of them")
     c.add_argument("paths", nargs="+", metavar="PATH",
@@ -180,7 +180,7 @@ def _read_failure(name: str, exc: OSError) -> FileResult:
 
 def _config(args, stderr):
     """The project configuration the arguments ask for; None after reporting a mistake in it."""
-    from . import config as cfg
+    from speccheck.reading import config as cfg
 
     if args.no_config:
         return cfg.DEFAULT
@@ -198,7 +198,7 @@ def _config(args, stderr):
 
 
 def _fail_level(args, config) -> str:
-    from .findings import SEVERITIES
+    from speccheck.records.findings import SEVERITIES
 
     if args.fail_on:
         return args.fail_on
@@ -208,11 +208,11 @@ def _fail_level(args, config) -> str:
 
 
 def _check(args, stdout, stderr) -> int:
-    from . import config as cfg
-    from . import suppress
-    from .check import DEFAULT_TOLERANCE, Checker, Options
-    from .formats import OutputOptions, writer
-    from .units import UnitSystem
+    from speccheck.reading import config as cfg
+    from speccheck.reading import suppress
+    from speccheck.checking.document import DEFAULT_TOLERANCE, Checker, Options
+    from speccheck.formats import OutputOptions, writer
+    from speccheck.reading.units import UnitSystem
 
     config = _config(args, stderr)
     if config is None:
@@ -303,7 +303,7 @@ def _write_atomically(target: Path, fill) -> None:
 
 
 def _rules(stdout) -> int:
-    from .rules import RULES
+    from speccheck.records.rules import RULES
 
     width = max(len(r) for r in RULES)
     for r in RULES.values():
@@ -326,8 +326,8 @@ def source_of(explanation: str) -> str | None:
 def _explain(rule_id: str, stdout, stderr) -> int:
     import difflib
 
-    from .relations import RELATIONS
-    from .rules import RULES
+    from speccheck.physics.relations import RELATIONS
+    from speccheck.records.rules import RULES
 
     r = RULES.get(rule_id)
     if r is None:
@@ -351,7 +351,7 @@ def _explain(rule_id: str, stdout, stderr) -> int:
 
 
 def _new(args, stdout, stderr) -> int:
-    from .starter import starter
+    from speccheck.starter import starter
 
     if args.output is None:
         stdout.write(starter(args.kind, "spec.yaml", args.schema))
@@ -374,7 +374,7 @@ def _new(args, stdout, stderr) -> int:
 
 
 def _relations(stdout) -> int:
-    from .relations import RELATIONS
+    from speccheck.physics.relations import RELATIONS
 
     for x in RELATIONS:
         stdout.write(f"{x.id:<24} {x.formula}\n{'':<24} source: {x.source}\n")
@@ -400,7 +400,7 @@ def run(argv: list[str], stdout=None, stderr=None) -> int:
     if args.command == "new":
         return _new(args, stdout, stderr)
     if args.command == "schema":
-        from .schema import schema_text
+        from speccheck.reading.schema import schema_text
 
         stdout.write(schema_text())
         return 0

@@ -7,8 +7,8 @@ import textwrap
 
 import pytest
 
-from speccheck.check import Checker
-from speccheck.units import UnitSystem
+from speccheck.checking.document import Checker
+from speccheck.reading.units import UnitSystem
 
 
 @pytest.fixture(scope="session")

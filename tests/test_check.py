@@ -2,7 +2,7 @@
 
 import pytest
 
-from speccheck.rules import RULES
+from speccheck.records.rules import RULES
 
 from conftest import cell, rules_of
 

@@ -5,8 +5,8 @@ import textwrap
 
 import pytest
 
-from speccheck import config as cfg
-from speccheck.findings import FileResult, Finding
+from speccheck.reading import config as cfg
+from speccheck.records.findings import FileResult, Finding
 
 
 def parse(text: str, **kw) -> cfg.Config:

@@ -89,7 +89,7 @@ def test_a_hidden_mistake_is_found_and_named(check, quantity, wrong, cause):
 
 
 def test_the_catalogue_covers_every_mistake_the_tests_inject():
-    from speccheck.mistakes import MISTAKES
+    from speccheck.physics.mistakes import MISTAKES
 
     tested = {c for _, _, c in CASES}
     untested = {m.id for m in MISTAKES} - tested

@@ -7,7 +7,7 @@ import math
 import numpy as np
 import pytest
 
-from speccheck import dispersion as d
+from speccheck.physics import dispersion as d
 
 FS = 1e-15  # femtosecond in s (unit conversion)
 FS2 = 1e-30  # fs^2 in s^2 (unit conversion)

@@ -4,10 +4,10 @@ import math
 
 import pytest
 
-from speccheck.engine import compile_network, diagnose, evaluate, propagate
-from speccheck.relations import Relation
-from speccheck.shapes import BEAM_PROFILES, PULSE_SHAPES
-from speccheck.relations import Context
+from speccheck.checking.engine import compile_network, diagnose, evaluate, propagate
+from speccheck.physics.relations import Relation
+from speccheck.physics.shapes import BEAM_PROFILES, PULSE_SHAPES
+from speccheck.physics.relations import Context
 
 CTX = Context(1.0, 1.0, 1.0, PULSE_SHAPES["gaussian"], BEAM_PROFILES["gaussian"])
 NAMES = ("pulse_energy", "average_power", "repetition_rate", "pulse_duration", "peak_power")

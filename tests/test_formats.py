@@ -9,11 +9,11 @@ from pathlib import Path
 
 import pytest
 
-from speccheck import __version__
-from speccheck.findings import Cell, FileResult, Finding
+from speccheck._version import __version__
+from speccheck.records.findings import Cell, FileResult, Finding
 from speccheck.formats import FORMATS, OutputOptions, writer
 from speccheck.formats import github, sarif
-from speccheck.rules import RULES
+from speccheck.records.rules import RULES
 
 EXAMPLES = Path(__file__).resolve().parent.parent / "example_specs"
 

@@ -11,8 +11,8 @@ import math
 
 import pytest
 
-from speccheck import hazards
-from speccheck.materials import refractive_index
+from speccheck.physics import hazards
+from speccheck.physics.materials import refractive_index
 
 from conftest import cell
 

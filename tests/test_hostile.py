@@ -35,16 +35,16 @@ import yaml
 from hypothesis import HealthCheck, given, settings
 from hypothesis import strategies as st
 
-import speccheck.schema as schema_module
-import speccheck.units as units_module
-from speccheck.check import Checker, Options
+import speccheck.reading.schema as schema_module
+import speccheck.reading.units as units_module
+from speccheck.checking.document import Checker, Options
 from speccheck.cli import run
 from speccheck.formats import json_format
-from speccheck.loader import Limits
-from speccheck.quantities import ALIASES, CATEGORICAL, QUANTITIES
-from speccheck.rules import RULES
-from speccheck.units import UnitError, UnitSystem, format_number
-from speccheck.values import ValueParser, ValueProblem
+from speccheck.reading.loader import Limits
+from speccheck.physics.quantities import ALIASES, CATEGORICAL, QUANTITIES
+from speccheck.records.rules import RULES
+from speccheck.reading.units import UnitError, UnitSystem, format_number
+from speccheck.reading.values import ValueParser, ValueProblem
 
 ROOT = Path(__file__).resolve().parent.parent
 EXAMPLES = ROOT / "example_specs"

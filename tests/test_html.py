@@ -22,7 +22,7 @@ from hypothesis import HealthCheck, given, settings
 from hypothesis import strategies as st
 
 from speccheck.cli import run
-from speccheck.findings import FileResult, Finding
+from speccheck.records.findings import FileResult, Finding
 from speccheck.formats import FORMATS
 from speccheck.formats import html as html_format
 

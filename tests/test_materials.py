@@ -8,7 +8,7 @@ import numpy as np
 import pint
 import pytest
 
-from speccheck import materials as m
+from speccheck.physics import materials as m
 
 # Speed of light from pint (never typed in). pint returns a Unit for the
 # bare constant, so it is multiplied by 1 to make a Quantity first.

@@ -11,9 +11,9 @@ import math
 import numpy as np
 import pytest
 
-from speccheck.check import Checker
+from speccheck.checking.document import Checker
 from speccheck.cli import read_beside
-from speccheck.measured import DataProblem, analyse_autocorrelation, analyse_spectrum, read_table
+from speccheck.reading.measured import DataProblem, analyse_autocorrelation, analyse_spectrum, read_table
 
 C = 299792458.0  # exact (SI)
 

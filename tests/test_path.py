@@ -217,7 +217,7 @@ def test_a_target_before_a_split_is_reported_not_ignored(check):
 
 
 def test_third_order_dispersion_is_accumulated_and_reported(check, units):
-    from speccheck import materials
+    from speccheck.physics import materials
 
     # TOD of 10 mm fused silica at 800 nm from its Sellmeier equation (27.5 fs³/mm, Malitson 1965,
     # checked in test_materials.py) plus a stage's own 1000 fs³.

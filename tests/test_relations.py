@@ -10,8 +10,8 @@ import math
 import numpy as np
 import pytest
 
-from speccheck.relations import RELATIONS
-from speccheck.shapes import BEAM_PROFILES, PULSE_SHAPES
+from speccheck.physics.relations import RELATIONS
+from speccheck.physics.shapes import BEAM_PROFILES, PULSE_SHAPES
 
 from conftest import cell
 

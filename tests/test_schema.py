@@ -5,8 +5,8 @@ from pathlib import Path
 
 from jsonschema import Draft202012Validator
 
-from speccheck.quantities import ALIASES, CATEGORICAL, MEASURED, QUANTITIES
-from speccheck.schema import schema, schema_text
+from speccheck.physics.quantities import ALIASES, CATEGORICAL, MEASURED, QUANTITIES
+from speccheck.reading.schema import schema, schema_text
 
 ROOT = Path(__file__).resolve().parent.parent
 
@@ -39,7 +39,7 @@ def test_the_compiled_schema_agrees_with_jsonschema_on_valid_broken_and_hostile_
 
     import yaml
 
-    from speccheck.fastschema import compile_schema
+    from speccheck.reading.fastschema import compile_schema
 
     fast = compile_schema(schema())
     reference = Draft202012Validator(schema())

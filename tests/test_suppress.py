@@ -6,9 +6,9 @@ import pytest
 from hypothesis import given, settings
 from hypothesis import strategies as st
 
-from speccheck import suppress
-from speccheck.findings import Finding
-from speccheck.rules import RULES
+from speccheck.reading import suppress
+from speccheck.records.findings import Finding
+from speccheck.records.rules import RULES
 
 
 @pytest.fixture

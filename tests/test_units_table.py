@@ -6,7 +6,7 @@ import json
 import pytest
 
 from speccheck.cli import run
-from speccheck.units import UnitSystem
+from speccheck.reading.units import UnitSystem
 
 
 @pytest.fixture

@@ -4,7 +4,7 @@ import math
 
 import pytest
 
-from speccheck.values import ValueParser, ValueProblem, parse_tolerance
+from speccheck.reading.values import ValueParser, ValueProblem, parse_tolerance
 
 
 @pytest.fixture(scope="module")

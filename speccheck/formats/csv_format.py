@@ -19,7 +19,7 @@ from __future__ import annotations
 
 import csv
 
-from ..findings import Cell, FileResult
+from speccheck.records.findings import Cell, FileResult
 
 FIXED = ("file", "quantity", "unit")
 

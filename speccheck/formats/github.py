@@ -9,7 +9,7 @@ property values also escape ``:`` and ``,``.
 
 from __future__ import annotations
 
-from ..findings import FileResult, Finding
+from speccheck.records.findings import FileResult, Finding
 
 COMMANDS = {"error": "error", "warning": "warning", "note": "notice"}
 

@@ -32,10 +32,10 @@ import math
 from html import escape
 from typing import Callable
 
-from .. import __version__
-from ..findings import Cell, FileResult, Finding, SEVERITIES
-from ..shapes import DEFAULT_SHAPE
-from ..units import choose_unit, format_number, format_quantity, pretty_unit
+from speccheck._version import __version__
+from speccheck.records.findings import Cell, FileResult, Finding, SEVERITIES
+from speccheck.physics.shapes import DEFAULT_SHAPE
+from speccheck.reading.units import choose_unit, format_number, format_quantity, pretty_unit
 
 INSTALL_HINT = "pip install 'speccheck[report]'"
 MAX_CURVES = 8  # curves in one plot (a path with many branches shows its first ones)
@@ -263,7 +263,7 @@ def _where(f: Finding) -> str:
 
 
 def _finding(f: Finding) -> str:
-    from ..rules import RULES
+    from speccheck.records.rules import RULES
 
     e = escape
     out = [f'<li class="finding {e(f.severity)}" data-rule="{e(f.rule)}">',
@@ -299,7 +299,7 @@ def _grid(result: FileResult, show: _Show, n: int) -> str:
         rows += [q for q in cells if q not in rows]
     if not rows:
         return '<p class="notice">No sheet: the spec was not read far enough to fill one in.</p>'
-    from ..quantities import BY_NAME
+    from speccheck.physics.quantities import BY_NAME
 
     e = escape
     out = ['<p class="legend">Cells: <span class="c-stated">stated</span>'
@@ -434,7 +434,7 @@ def render(results: list[FileResult], units, plotter=None, why: str | None = Non
 def write(results: list[FileResult], out, options=None) -> None:
     units = getattr(options, "units", None)
     if units is None:
-        from ..units import UnitSystem
+        from speccheck.reading.units import UnitSystem
 
         units = UnitSystem()
     plotter, why = _plotter()

@@ -6,8 +6,8 @@ from rich.console import Console
 from rich.table import Table
 from rich.text import Text
 
-from ..findings import Cell, FileResult, SEVERITIES
-from ..units import choose_unit, format_number, format_quantity, pretty_unit
+from speccheck.records.findings import Cell, FileResult, SEVERITIES
+from speccheck.reading.units import choose_unit, format_number, format_quantity, pretty_unit
 
 _SEVERITY_STYLE = {"error": "bold red", "warning": "yellow", "note": "cyan"}
 _STATUS_STYLE = {"stated": "", "derived": "green", "conflict": "bold red"}

@@ -10,7 +10,7 @@ from __future__ import annotations
 import json
 import math
 
-from ..findings import Cell, FileResult, Finding, SEVERITIES
+from speccheck.records.findings import Cell, FileResult, Finding, SEVERITIES
 
 VERSION = 1
 

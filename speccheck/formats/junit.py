@@ -14,7 +14,7 @@ from __future__ import annotations
 import re
 import xml.etree.ElementTree as ET
 
-from ..findings import SEVERITIES, FileResult, Finding
+from speccheck.records.findings import SEVERITIES, FileResult, Finding
 
 _NOT_XML = re.compile("[\x00-\x08\x0b\x0c\x0e-\x1f\ud800-\udfff\ufffe\uffff]")
 CLEAN_CASE = "no-findings"

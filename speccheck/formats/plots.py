@@ -25,7 +25,7 @@ import numpy as np
 from matplotlib.backends.backend_agg import FigureCanvasAgg
 from matplotlib.figure import Figure
 
-from ..units import choose_unit, format_number, pretty_unit
+from speccheck.reading.units import choose_unit, format_number, pretty_unit
 
 _SECH2_T = 2.0 * math.acosh(math.sqrt(2.0))  # FWHM of sech² in units of its width: 1.7627
 _SINC2_FWHM = 0.8858929  # FWHM of sinc²(πu) in u (numpy's sinc is sin(πu)/(πu))

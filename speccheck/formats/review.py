@@ -9,9 +9,9 @@ from __future__ import annotations
 from rich.console import Console
 from rich.text import Text
 
-from ..findings import FileResult, SEVERITIES
-from ..quantities import BY_NAME
-from ..units import choose_unit, format_quantity
+from speccheck.records.findings import FileResult, SEVERITIES
+from speccheck.physics.quantities import BY_NAME
+from speccheck.reading.units import choose_unit, format_quantity
 
 _STYLE = {"error": "bold red", "warning": "yellow", "note": "cyan"}
 # The numbers a reviewer asks for; the rest of the sheet is in the other formats.

@@ -15,9 +15,9 @@ import json
 from pathlib import PurePath
 from urllib.parse import quote
 
-from .. import __version__
-from ..findings import FileResult, Finding
-from ..rules import RULES
+from speccheck._version import __version__
+from speccheck.records.findings import FileResult, Finding
+from speccheck.records.rules import RULES
 
 SARIF_VERSION = "2.1.0"
 SARIF_SCHEMA = "https://docs.oasis-open.org/sarif/sarif/v2.1.0/errata01/os/schemas/sarif-schema-2.1.0.json"

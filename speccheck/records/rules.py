@@ -11,7 +11,7 @@ from __future__ import annotations
 
 from dataclasses import dataclass, replace
 
-from .findings import SEVERITIES
+from speccheck.records.findings import SEVERITIES
 
 
 @dataclass(frozen=True)

@@ -12,15 +12,15 @@ from __future__ import annotations
 
 from dataclasses import dataclass
 
-from .block import KEYS, BlockCheck
-from .findings import Cell, FileResult, Finding
-from .loader import Document, Limits, load
-from .relations import Context
-from .rules import rule
-from .schema import validate
-from .shapes import BEAM_PROFILES, DEFAULT_SHAPE, PULSE_SHAPES
-from .units import UnitSystem
-from .values import ValueParser, ValueProblem, parse_tolerance
+from speccheck.checking.column import KEYS, BlockCheck
+from speccheck.records.findings import Cell, FileResult, Finding
+from speccheck.reading.loader import Document, Limits, load
+from speccheck.physics.relations import Context
+from speccheck.records.rules import rule
+from speccheck.reading.schema import validate
+from speccheck.physics.shapes import BEAM_PROFILES, DEFAULT_SHAPE, PULSE_SHAPES
+from speccheck.reading.units import UnitSystem
+from speccheck.reading.values import ValueParser, ValueProblem, parse_tolerance
 
 DEFAULT_TOLERANCE = 0.05
 
@@ -88,7 +88,7 @@ class Checker:
                 if isinstance(points, list):
                     self._operating_points(block, points, tolerance, report, sheet)
                 if isinstance(data.get("path"), list) or isinstance(data.get("target"), dict):
-                    from .chain import check_path
+                    from speccheck.checking.walker import check_path
 
                     ends = tuple(check_path(self, data, tolerance, report, sheet))
             if sheet:
@@ -98,7 +98,7 @@ class Checker:
         return FileResult(path, findings, sheet, title, shape, shape_stated, ends, points)
 
     def _safety(self, data: dict, sheet: dict, report: _Report) -> None:
-        from . import safety
+        from speccheck.checking import safety
 
         if not safety.is_hazard(sheet):
             return

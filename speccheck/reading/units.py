@@ -64,7 +64,7 @@ def _table_path():
         return None
     base = os.environ.get("SPECCHECK_CACHE_DIR") or os.path.join(
         os.environ.get("XDG_CACHE_HOME") or os.path.join(os.path.expanduser("~"), ".cache"), "speccheck")
-    from . import __version__
+    from speccheck._version import __version__
 
     # keyed by both versions: a new speccheck may describe units differently, a new pint may
     # carry new CODATA values

@@ -13,18 +13,18 @@ from __future__ import annotations
 import math
 from typing import TYPE_CHECKING
 
-from .engine import Diagnosis, Network, State, diagnose, evaluate, implied, network_for
-from .findings import Cell
-from .limits import LIMITS
-from .mistakes import likely_causes
-from .quantities import ALIASES, BY_NAME, CATEGORICAL, DEFAULTS, MEASURED, QUANTITIES
-from .relations import BY_ID
-from .shapes import BEAM_PROFILES, DEFAULT_PROFILE, DEFAULT_SHAPE, PULSE_SHAPES
-from .units import UnitError, choose_unit, format_number, format_quantity
-from .values import Stated, ValueProblem
+from speccheck.checking.engine import Diagnosis, Network, State, diagnose, evaluate, implied, network_for
+from speccheck.records.findings import Cell
+from speccheck.physics.limits import LIMITS
+from speccheck.physics.mistakes import likely_causes
+from speccheck.physics.quantities import ALIASES, BY_NAME, CATEGORICAL, DEFAULTS, MEASURED, QUANTITIES
+from speccheck.physics.relations import BY_ID
+from speccheck.physics.shapes import BEAM_PROFILES, DEFAULT_PROFILE, DEFAULT_SHAPE, PULSE_SHAPES
+from speccheck.reading.units import UnitError, choose_unit, format_number, format_quantity
+from speccheck.reading.values import Stated, ValueProblem
 
 if TYPE_CHECKING:  # only for annotations: check.py imports this module
-    from .check import Checker, _Report
+    from speccheck.checking.document import Checker, _Report
 
 NAMES = tuple(q.name for q in QUANTITIES)
 KEYS = set(NAMES) | set(ALIASES)  # spec keys of a block that hold quantities
@@ -200,7 +200,7 @@ class BlockCheck:
     # ------------------------------------------------------- measured data
     def measure(self, key: str, raw: dict) -> None:
         """Read a measured file; its widths become stated values or are compared with them."""
-        from . import measured
+        from speccheck.reading import measured
 
         at = self.paths[key]
         name = raw.get("file")

@@ -14,8 +14,8 @@ import math
 from dataclasses import dataclass
 from typing import Callable
 
-from .quantities import BY_NAME
-from .relations import Context
+from speccheck.physics.quantities import BY_NAME
+from speccheck.physics.relations import Context
 
 LENGTHS = ("beam_diameter", "beam_radius", "beam_diameter_fwhm")
 AREA_DEPENDENT = ("peak_intensity", "average_intensity", "peak_fluence")

@@ -20,7 +20,7 @@ from collections import deque
 from dataclasses import dataclass
 from functools import lru_cache
 
-from .relations import RELATIONS, Context, Relation
+from speccheck.physics.relations import RELATIONS, Context, Relation
 
 _TIGHTEN = 1e-12  # smallest change in ln q worth propagating
 _EMPTY = 1e-9  # lo > hi by more than this in ln q is a contradiction

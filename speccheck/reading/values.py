@@ -19,8 +19,8 @@ import math
 import re
 from dataclasses import dataclass
 
-from .quantities import ALIASES, BY_NAME
-from .units import DIMENSION_NAMES, UnitError, UnitSystem
+from speccheck.physics.quantities import ALIASES, BY_NAME
+from speccheck.reading.units import DIMENSION_NAMES, UnitError, UnitSystem
 
 _NUMBER = r"[+-]?(?:\d+(?:\.\d*)?|\.\d+)(?:[eE][+-]?\d+)?"
 _TIMES_TEN = r"(?:\s*[x×*]\s*10\s*(?:\^|\*\*)\s*([+-]?\d{1,4}))?"

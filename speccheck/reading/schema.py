@@ -33,7 +33,7 @@ def schema() -> dict:
 
 @lru_cache(maxsize=1)
 def _fast():
-    from .fastschema import compile_schema
+    from speccheck.reading.fastschema import compile_schema
 
     return compile_schema(schema())
 

@@ -23,8 +23,8 @@ import math
 from dataclasses import dataclass, field, replace
 from typing import Callable
 
-from . import dispersion
-from .dispersion import broadened_duration
+from speccheck.physics import dispersion
+from speccheck.physics.dispersion import broadened_duration
 
 CARRIED = ("wavelength", "repetition_rate", "pulse_energy", "average_power", "pulse_duration",
            "spectral_bandwidth", "beam_diameter", "m2")

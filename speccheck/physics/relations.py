@@ -16,8 +16,8 @@ import math
 from dataclasses import dataclass
 from typing import Callable
 
-from .quantities import BY_NAME
-from .shapes import BeamProfile, PulseShape
+from speccheck.physics.quantities import BY_NAME
+from speccheck.physics.shapes import BeamProfile, PulseShape
 
 
 @dataclass(frozen=True)

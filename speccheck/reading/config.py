@@ -35,8 +35,8 @@ from pathlib import Path, PurePosixPath
 from types import MappingProxyType
 from typing import Iterable, Mapping
 
-from .findings import SEVERITIES, FileResult
-from .rules import RULES
+from speccheck.records.findings import SEVERITIES, FileResult
+from speccheck.records.rules import RULES
 
 CONFIG_FILE = "speccheck.toml"
 PYPROJECT = "pyproject.toml"
@@ -178,7 +178,7 @@ def parse(text: str, path: str = CONFIG_FILE, *, pyproject: bool = False, root: 
 
     tolerance = None
     if "tolerance" in section:
-        from .values import ValueProblem, parse_tolerance
+        from speccheck.reading.values import ValueProblem, parse_tolerance
 
         try:
             tolerance = parse_tolerance(section["tolerance"])

@@ -27,9 +27,9 @@ from dataclasses import dataclass
 
 import yaml
 
-from .config import ALWAYS_SHOWN, FIXED_RULES
-from .findings import Finding
-from .rules import RULES, rule
+from speccheck.reading.config import ALWAYS_SHOWN, FIXED_RULES
+from speccheck.records.findings import Finding
+from speccheck.records.rules import RULES, rule
 
 try:
     from yaml import CSafeLoader as _Loader

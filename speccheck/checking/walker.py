@@ -14,12 +14,12 @@ from __future__ import annotations
 import math
 from dataclasses import replace
 
-from . import hazards
-from .findings import Cell
-from .path import CARRIED, STAGE_KINDS, Beam, StageContext, intrinsic_gdd, point, scaled, typical
-from .quantities import BY_NAME
-from .shapes import DEFAULT_SHAPE, PULSE_SHAPES
-from .values import Stated, ValueProblem
+from speccheck.physics import hazards
+from speccheck.records.findings import Cell
+from speccheck.physics.stages import CARRIED, STAGE_KINDS, Beam, StageContext, intrinsic_gdd, point, scaled, typical
+from speccheck.physics.quantities import BY_NAME
+from speccheck.physics.shapes import DEFAULT_SHAPE, PULSE_SHAPES
+from speccheck.reading.values import Stated, ValueProblem
 
 _STAGE_KEYS = {"name", "kind", "measured", "branches", "damage_threshold"} | {
     p.name for k in STAGE_KINDS.values() for p in k.params}
@@ -75,7 +75,7 @@ class _Chain:
 
     # ------------------------------------------------------------ helpers
     def stage_context(self, notes: list) -> StageContext:
-        from . import materials
+        from speccheck.physics import materials
 
         shape = PULSE_SHAPES.get(self.categorical.get("pulse_shape"), PULSE_SHAPES[DEFAULT_SHAPE])
         c = self.c.units.constants.c
@@ -134,7 +134,7 @@ class _Chain:
                             f"{', '.join(kind.one_of)}", at, key=True)
             ok = False
         if kind.name == "material" and ok:
-            from . import materials
+            from speccheck.physics import materials
 
             try:
                 materials.lookup(out["material"])
@@ -144,7 +144,7 @@ class _Chain:
         return out if ok else None
 
     def column(self, name: str, beam: Beam, measured, at: tuple) -> dict:
-        from .units import choose_unit, format_quantity
+        from speccheck.reading.units import choose_unit, format_quantity
 
         inherited = {}
         for q, (low, typ, high) in beam.values.items():
@@ -160,7 +160,7 @@ class _Chain:
                 block[key] = value
                 paths[key] = at + ("measured", key)
         paths[""] = at
-        from .block import BlockCheck
+        from speccheck.checking.column import BlockCheck
 
         check = BlockCheck(self.c, name, block, self.tolerance, self.report, paths, inherited, notes=False)
         cells = check.run()
@@ -332,7 +332,7 @@ class _Chain:
     def nonlinear(self, name: str, params: dict, cells: dict, incident: dict, at: tuple, columns: list) -> None:
         """Self-focusing and B-integral of a material stage, for the beam entering it (the pulse
         only gets longer inside, so the entrance is the worst case)."""
-        from . import materials
+        from speccheck.physics import materials
 
         material = materials.lookup(params["material"])
         lam = cells.get("wavelength")
@@ -521,7 +521,7 @@ class _Chain:
                                 quantities=(f"{last}.{need.quantity}",))
 
     def _show(self, q: str, si: float, unit: str) -> str:
-        from .units import choose_unit, format_quantity
+        from speccheck.reading.units import choose_unit, format_quantity
 
         return format_quantity(self.c.units, si, choose_unit(self.c.units, si, unit))
 
@@ -531,7 +531,7 @@ class _Chain:
             if math.isfinite(need.high) and need.low == 0 else need.typical
         if not bound or not value:
             return ""
-        from .units import format_number
+        from speccheck.reading.units import format_number
 
         return f", {format_number(value / bound, 3)}× the required {need.text.lstrip('<>=≤≥ ')}"
 

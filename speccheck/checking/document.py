@@ -2,10 +2,10 @@
 
 This is the core of speccheck and it does no I/O: the command line reads
 files and formats results.  Checks say *what* (a rule id, a message, the
-quantities); ``_Report`` says *where*, stamping file, line, column and the
+quantities); ``Report`` says *where*, stamping file, line, column and the
 rule's severity from the document's node marks.  ``Checker`` works on the
-whole document (schema, columns, safety); ``block.BlockCheck`` checks one
-column of quantities.
+whole document (schema, columns, safety); ``column.BlockCheck`` checks one
+column of quantities and ``walker`` the beam path.
 """
 
 from __future__ import annotations
@@ -13,10 +13,10 @@ from __future__ import annotations
 from dataclasses import dataclass
 
 from speccheck.checking.column import KEYS, BlockCheck
+from speccheck.checking.report import Report
 from speccheck.records.findings import Cell, FileResult, Finding
-from speccheck.reading.loader import Document, Limits, load
+from speccheck.reading.loader import Limits, load
 from speccheck.physics.relations import Context
-from speccheck.records.rules import rule
 from speccheck.reading.schema import validate
 from speccheck.physics.shapes import BEAM_PROFILES, DEFAULT_SHAPE, PULSE_SHAPES
 from speccheck.reading.units import UnitSystem
@@ -29,28 +29,6 @@ DEFAULT_TOLERANCE = 0.05
 class Options:
     limits: Limits = Limits()
     default_tolerance: float = DEFAULT_TOLERANCE
-
-
-class _Report:
-    """Collects findings; stamps location and severity (checks never do)."""
-
-    def __init__(self, path: str, doc: Document) -> None:
-        self.path = path
-        self.doc = doc
-        self.findings: list[Finding] = []
-        self.seen: set = set()
-        self.dedupe = False
-        self.points: set[str] = set()  # names of the operating-point columns
-
-    def add(self, rule_id: str, message: str, at=(), *, key: bool = False, line=None, column=None,
-            quantities=(), suspect=None, candidates=(), cause=None) -> None:
-        if line is None:
-            line, column = self.doc.where(tuple(at), key=key)
-        if self.dedupe and (rule_id, line, column) in self.seen:
-            return
-        self.seen.add((rule_id, line, column))
-        self.findings.append(Finding(rule_id, rule(rule_id).severity, message, self.path, line, column,
-                                     tuple(quantities), suspect, tuple(candidates), cause))
 
 
 class Checker:
@@ -66,7 +44,7 @@ class Checker:
 
     def check_text(self, text: str | bytes, path: str) -> FileResult:
         doc = load(text, self.options.limits)
-        report = _Report(path, doc)
+        report = Report(path, doc)
         for p in doc.problems:
             report.add(p.rule, p.message, line=p.line, column=p.column)
         sheet: dict[str, dict[str, Cell]] = {}
@@ -97,7 +75,7 @@ class Checker:
         points = tuple(name for name in sheet if name in report.points)
         return FileResult(path, findings, sheet, title, shape, shape_stated, ends, points)
 
-    def _safety(self, data: dict, sheet: dict, report: _Report) -> None:
+    def _safety(self, data: dict, sheet: dict, report: Report) -> None:
         from speccheck.checking import safety
 
         if not safety.is_hazard(sheet):
@@ -124,7 +102,7 @@ class Checker:
                              "safety officer, not an eyewear specification")
         report.add("laser-safety", text + ".", ("laser",), key=True)
 
-    def _operating_points(self, block: dict, points: list, tolerance: float, report: _Report,
+    def _operating_points(self, block: dict, points: list, tolerance: float, report: Report,
                           sheet: dict) -> None:
         """Each point overrides the laser block and is checked as a column of its own."""
         report.dedupe = True  # findings already reported for the laser block are not repeated
@@ -150,7 +128,7 @@ class Checker:
         report.dedupe = False
 
     def _sheet_limits(self, name: str, block: dict, point: dict, i: int, check: "BlockCheck",
-                      report: _Report) -> None:
+                      report: Report) -> None:
         """A point may not claim more than the sheet's own minimum or maximum for a quantity."""
         for key, value in point.items():
             if key == "name" or key not in block or key not in KEYS:
@@ -174,7 +152,7 @@ class Checker:
                        f"{check.show(limit.quantity, bound, limit.unit)} (laser.{key}: {limit.text}, line {line})",
                        ("operating_points", i, key), quantities=(f"{name}.{key}", f"laser.{key}"))
 
-    def _tolerance(self, data: dict, report: _Report) -> float:
+    def _tolerance(self, data: dict, report: Report) -> float:
         defaults = data.get("defaults")
         if not isinstance(defaults, dict) or "tolerance" not in defaults:
             return self.options.default_tolerance

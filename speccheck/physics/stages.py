@@ -108,10 +108,11 @@ def intrinsic_gdd(duration: Value, tl: Value) -> Value:
 @dataclass(frozen=True)
 class Param:
     name: str
-    dimension: str  # a key of units.DIMENSION_NAMES, or "text", "count"
+    dimension: str  # a key of units.DIMENSION_NAMES, "text", or "material" (a name in the material table)
     required: bool = False
     default: float | None = None
     choices: tuple = ()
+    fraction: bool = False  # a share of the beam: never more than 1
 
 
 @dataclass(frozen=True)
@@ -122,6 +123,10 @@ class StageKind:
     summary: str
     source: str = ""
     one_of: tuple = ()  # at least one of these parameters is needed
+    # The kind's own checks, by id (their code is in checking.stage_checks, which has a
+    # registry of them and fails loudly on an unknown id): physics does not make findings.
+    checks: tuple[str, ...] = ()
+    splits: bool = False  # the stage ends its path and starts two named ``branches``
 
     def param(self, name: str) -> Param | None:
         return next((p for p in self.params if p.name == name), None)
@@ -136,7 +141,7 @@ class StageContext:
     note: Callable[[str], None] = field(default=lambda text: None)
 
 
-_T = Param("transmission", "1", default=1.0)
+_T = Param("transmission", "1", default=1.0, fraction=True)
 
 
 def _transmit(beam: Beam, t: Value) -> Beam:
@@ -270,12 +275,12 @@ def _focus(beam, p, ctx):
 
 
 def _splitter(beam, p, ctx):
-    return beam  # the branches take their shares (see check.py)
+    return beam  # the branches take their shares (checking.walker splits the path)
 
 
 STAGE_KINDS: dict[str, StageKind] = {k.name: k for k in (
     StageKind("optic", (_T,), _optic, "a mirror, lens or window that loses power (transmission)"),
-    StageKind("attenuator", (Param("transmission", "1", required=True),), _optic,
+    StageKind("attenuator", (Param("transmission", "1", required=True, fraction=True),), _optic,
               "a deliberate loss: E and P times the transmission"),
     StageKind("pulse_picker", (Param("divide_by", "1", required=True), _T), _picker,
               "keeps one pulse in N: rate ÷ N, energy × transmission"),
@@ -285,26 +290,28 @@ STAGE_KINDS: dict[str, StageKind] = {k.name: k for k in (
     StageKind("dispersion", (Param("gdd", "s^2", required=True), Param("tod", "s^3")), _dispersion,
               "adds group-delay dispersion (a prechirp, a chirped mirror set)",
               "τ = τ_TL √(1 + (4 ln2 φ/τ_TL²)²) for a Gaussian pulse"),
-    StageKind("material", (Param("material", "text", required=True), Param("thickness", "m", required=True), _T),
+    StageKind("material", (Param("material", "material", required=True), Param("thickness", "m", required=True),
+                           _T),
               _material, "a thickness of a named glass: GDD from its Sellmeier equation",
-              "GDD = GVD × L, GVD = λ³/(2πc²) d²n/dλ²"),
+              "GDD = GVD × L, GVD = λ³/(2πc²) d²n/dλ²", checks=("self-focusing",)),
     StageKind("compressor", (Param("gdd", "s^2"), _T), _compressor,
               "a grating or prism compressor: negative GDD and a transmission"),
     StageKind("harmonic", (Param("order", "1", required=True, choices=(2.0, 3.0)),
-                           Param("efficiency", "1", required=True)), _harmonic,
+                           Param("efficiency", "1", required=True, fraction=True)), _harmonic,
               "second or third harmonic: λ ÷ order, energy × efficiency"),
     StageKind("parametric", (Param("signal_wavelength", "m"), Param("idler_wavelength", "m"),
                              Param("output", "text", choices=("signal", "idler")),
-                             Param("efficiency", "1", required=True)), _parametric,
+                             Param("efficiency", "1", required=True, fraction=True)), _parametric,
               "pump → signal + idler: 1/λp = 1/λs + 1/λi, energy × efficiency",
-              "photon-energy conservation", one_of=("signal_wavelength", "idler_wavelength")),
+              "photon-energy conservation", one_of=("signal_wavelength", "idler_wavelength"),
+              checks=("photon-energy",)),
     StageKind("telescope", (Param("magnification", "1", required=True),), _telescope,
               "beam diameter × magnification"),
     StageKind("beam_expander", (Param("magnification", "1", required=True),), _telescope,
               "beam diameter × magnification"),
-    StageKind("splitter", (Param("ratio", "1", required=True),), _splitter,
-              "divides the beam into two named branches (pump–probe)"),
+    StageKind("splitter", (Param("ratio", "1", required=True, fraction=True),), _splitter,
+              "divides the beam into two named branches (pump–probe)", splits=True),
     StageKind("focus", (Param("focal_length", "m", required=True),), _focus,
               "focusing optic: 1/e² spot diameter 4 M² λ f / (π D)",
-              "Gaussian-beam optics (paraxial)"),
+              "Gaussian-beam optics (paraxial)", checks=("measured-spot", "focus-spot")),
 )}

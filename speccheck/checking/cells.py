@@ -1,0 +1,52 @@
+"""The cells of a column of the sheet: each quantity stated, derived or in conflict, with its
+interval and the unit it is shown in."""
+
+from __future__ import annotations
+
+import math
+from speccheck.checking.engine import implied
+from speccheck.checking.logspace import centre, exp
+from speccheck.physics.quantities import BY_NAME, DEFAULTS
+from speccheck.reading.units import choose_unit
+from speccheck.records.findings import Cell
+
+
+def build(col) -> dict[str, Cell]:
+    d = col.diagnosis
+    names = col.net.names
+    removed = set(d.removed)
+    nominal = col.nominal(removed)
+    out: dict[str, Cell] = {}
+    for i, q in enumerate(names):
+        quantity = BY_NAME[q]
+        if q in col.stated:
+            s = col.stated[q]
+            low = s.low if s.low > 0.0 else None
+            high = s.high if math.isfinite(s.high) else None
+            value = s.typical if s.typical is not None else centre(low, high)
+            if i in removed:
+                state = d.state if d.suspects else implied(col.net, col.log_stated, i)
+                ilo, ihi = (exp(state.lo[i]), exp(state.hi[i])) if state.ok else (None, None)
+                out[q] = Cell("conflict", low, high, value, quantity.si_unit, s.unit, ilo, ihi,
+                              text=s.text)
+            elif q in col.carried:
+                unit = col.unit_for(q, value) if value else s.unit
+                out[q] = Cell("derived", low, high, value, quantity.si_unit, unit)
+            else:
+                out[q] = Cell("stated", low, high, value, quantity.si_unit, s.unit, text=s.text)
+        elif d.state.known(i) and i not in col.fixed:
+            low, high = exp(d.state.lo[i]), exp(d.state.hi[i])
+            value = centre(low, high)
+            if i in nominal:
+                value = min(max(exp(nominal[i]) or math.inf, low or 0.0), high or math.inf)
+                value = value if math.isfinite(value) else None
+            if value is None and low is None and high is None:
+                continue  # beyond what a float holds: nothing to show
+            ref = value if value is not None else (low if low is not None else high)
+            unit = choose_unit(col.c.units, ref, quantity.display_unit)
+            out[q] = Cell("derived", low, high, value, quantity.si_unit, unit)
+    derived_from = [col.net.index[c] for c in out]
+    for q, value in DEFAULTS.items():
+        if q not in out and d.state.uses_quantity(derived_from, col.net.index[q]):
+            out[q] = Cell("derived", value, value, value, BY_NAME[q].si_unit, "1", assumed=True)
+    return {q: out[q] for q in names if q in out}

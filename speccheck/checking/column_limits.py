@@ -1,0 +1,56 @@
+"""Limits on single quantities of a column (``physics.limits``), and the notes on what a
+column assumed (the pulse shape and beam profile when they are not stated)."""
+
+from __future__ import annotations
+
+import math
+from speccheck.checking.wording import join
+from speccheck.physics.limits import LIMITS
+from speccheck.physics.quantities import BY_NAME, DEFAULTS
+from speccheck.physics.relations import BY_ID
+from speccheck.physics.shapes import DEFAULT_PROFILE, DEFAULT_SHAPE
+from speccheck.reading.units import format_quantity
+from speccheck.records.findings import Cell
+
+
+def report_limits(col, cells: dict[str, Cell]) -> None:
+    for limit in LIMITS:
+        cell = cells.get(limit.quantity)
+        if cell is None or cell.status == "conflict":
+            continue
+        low = cell.low if cell.low is not None else 0.0
+        high = cell.high if cell.high is not None else math.inf
+        if not limit.violated(low, high, col.context):
+            continue
+        q = limit.quantity
+        i = col.net.index[q]
+        support = col.diagnosis.state.support(i) - {col.net.index[d] for d in DEFAULTS}
+        where = q if q in col.stated else col.nearest([col.net.names[k] for k in support] or [q], q)
+        origin = "" if q in col.stated else f" (from {col.describe_support(support)})"
+        bound = limit.bound(col.context)
+        what = limit.what.format(shape=col.context.shape.name)
+        bound_text = f"{what}" if what.replace(" ", "").replace(".", "").isdigit() else \
+            f"{what} ({format_quantity(col.c.units, bound, col.unit_for(q, bound))})"
+        relation = "below" if limit.side == "min" else "at or above" if bound == 1.0 else "above"
+        col.report.add(
+            limit.rule,
+            f"{col.name}.{q} is {col.show_interval(q, cell.low, cell.high, cell.value)}{origin}, {relation} "
+            f"{bound_text}: {limit.consequence}.",
+            col.at(where), quantities=[col.dotted(q)] + sorted(
+                col.dotted(col.net.names[k]) for k in support if col.net.names[k] != q))
+
+
+def report_assumptions(col, cells: dict[str, Cell]) -> None:
+    state = col.diagnosis.state
+    for key, default in (("pulse_shape", DEFAULT_SHAPE), ("beam_profile", DEFAULT_PROFILE)):
+        if key in col.block:
+            continue
+        relying = sorted(
+            q for q, cell in cells.items() if cell.status == "derived" and not BY_NAME[q].secondary
+            and any(key in BY_ID[r].uses for r in state.via(col.net.index[q])))
+        if relying:
+            col.report.add(
+                "assumed-shape",
+                f"{col.name}.{key} is not stated, so a {default} {key.replace('_', ' ')} is assumed "
+                f"for the derived {join(relying)}; state {key} to make them exact.",
+                col.paths.get("", (col.name,)), key=True, quantities=[col.dotted(q) for q in relying])

@@ -1,0 +1,243 @@
+"""The stage kinds' own checks, and the checks every stage gets.
+
+A stage kind (``physics.stages.STAGE_KINDS``) names its checks by id in its row;
+this module holds their code and the registry ``CHECKS`` (an unknown id fails
+loudly on import).  The walk calls the same hooks for every kind:
+
+* ``incident`` checks run before the stage's column is built and may change what the
+  column is built from (``visit.beam``, ``visit.measured``);
+* ``column`` checks run after it, with its cells (``visit.cells``), and may add cells.
+
+Each check takes the walk (for the report, the sheet, the value parser and the
+path's settings) and the ``Visit`` of one stage.
+"""
+
+from __future__ import annotations
+
+import math
+from dataclasses import dataclass
+from typing import Callable
+
+from speccheck.physics import hazards, materials
+from speccheck.physics.stages import STAGE_KINDS, Beam, StageKind, typical
+from speccheck.reading.values import ValueProblem
+from speccheck.records.findings import Cell
+
+
+@dataclass
+class Visit:
+    """One stage on the walk: what its checks are given (a working record, not a result)."""
+
+    name: str  # the stage's column
+    kind: StageKind
+    stage: dict  # as written in the spec
+    params: dict  # parsed: name -> (low, typical, high) in SI, or a text
+    at: tuple  # the stage's place in the document
+    incident: dict  # cells of the column before: the beam entering the stage
+    beam: Beam  # the beam the stage puts out
+    measured: object  # the stage's ``measured:`` block
+    columns: list  # the branch's columns so far (this stage's last, once built)
+    cells: dict | None = None  # this stage's column, once built
+
+
+def interval(cell: Cell) -> tuple:
+    """A cell as the walk's interval (low, typical, high): 0 and inf for an unbounded side."""
+    low = cell.low if cell.low is not None else 0.0
+    high = cell.high if cell.high is not None else math.inf
+    return (low, cell.value, high)
+
+
+@dataclass(frozen=True)
+class StageCheck:
+    id: str
+    phase: str  # "incident" or "column"
+    run: Callable  # (walk, visit) -> None
+    summary: str
+
+
+def photon_energy(walk, v: Visit) -> None:
+    """Signal and idler must add up to the pump's photon energy."""
+    name, incident, params, at = v.name, v.incident, v.params, v.at
+    pump = interval(incident["wavelength"]) if incident.get("wavelength") else None
+    s, i = params.get("signal_wavelength"), params.get("idler_wavelength")
+    if not (pump and s and i):
+        return
+    # 1/λp = 1/λs + 1/λi (photon-energy conservation); compare with the intervals
+    lo = 1 / s[2] + 1 / i[2]
+    hi = 1 / s[0] + 1 / i[0]
+    p_lo, p_hi = 1 / pump[2], 1 / pump[0]
+    if hi < p_lo or lo > p_hi:
+        implied = 1 / (1 / s[1] + 1 / i[1])
+        walk.report.add("photon-energy-not-conserved",
+                        f"{name}: signal {s[1] * 1e9:.5g} nm and idler {i[1] * 1e9:.5g} nm need a pump at "
+                        f"{implied * 1e9:.5g} nm (1/λp = 1/λs + 1/λi), but the pump is at "
+                        f"{pump[1] * 1e9:.5g} nm", at + ("signal_wavelength",))
+
+
+def measured_spot(walk, v: Visit) -> None:
+    """A measured focus spot may be larger than the diffraction limit, never smaller; one that
+    is possible replaces the computed spot for the column."""
+    name, beam, measured, at, params = v.name, v.beam, v.measured, v.at, v.params
+    if not isinstance(measured, dict):
+        return
+    rest = {k: x for k, x in measured.items() if k not in ("beam_diameter", "beam_radius")}
+    key = "beam_diameter" if "beam_diameter" in measured else "beam_radius" if "beam_radius" in measured else None
+    limit = beam.get("beam_diameter")
+    if key is None or limit is None:
+        return
+    try:
+        s = walk.c.values.parse(key, measured[key], walk.tolerance)
+    except ValueProblem:
+        return  # reported by the column
+    k = 2.0 if key == "beam_radius" else 1.0
+    spot = (s.low * k, (s.typical or 0) * k or None, s.high * k)
+    if spot[2] < limit[0]:
+        walk.report.add(
+            "spot-below-diffraction-limit",
+            f"{name}: the measured focus {key} {s.text} is smaller than the diffraction limit "
+            f"{walk.show('beam_diameter', typical(limit) / k, 'µm')} for this beam "
+            f"(1/e² diameter 4 M² λ f / (π D) with f = {params['focal_length'][1] * 1e3:.4g} mm)",
+            at + ("measured", key), quantities=(f"{name}.{key}",))
+        v.measured = rest
+        return
+    v.beam, v.measured = beam.with_values(beam_diameter=spot), rest
+
+
+def focus_spot(walk, v: Visit) -> None:
+    """The Rayleigh range z_R = π w0² / (M² λ) of the focus (Gaussian-beam optics), and a note
+    when the spot is below the paraxial model's reach."""
+    name, cells, at = v.name, v.cells, v.at
+    w, lam = cells.get("beam_radius"), cells.get("wavelength")
+    if w and lam and w.value and lam.value and w.value < lam.value / math.pi:
+        walk.report.add("non-paraxial-focus",
+                        f"{name}: the 1/e² spot radius {walk.show('beam_radius', w.value, 'µm')} is below "
+                        f"λ/π = {walk.show('beam_radius', lam.value / math.pi, 'µm')}: outside the "
+                        "paraxial Gaussian-beam model, so the spot and intensity are estimates", at, key=True)
+    m2 = cells.get("m2")
+    if not (w and lam and w.value and lam.value):
+        return
+    m = m2.value if m2 and m2.value else 1.0
+    z = math.pi * w.value**2 / (m * lam.value)
+    lo = math.pi * (w.low or w.value) ** 2 / (((m2.high if m2 and m2.high else m)) * (lam.high or lam.value))
+    hi = math.pi * (w.high or w.value) ** 2 / (((m2.low if m2 and m2.low else m)) * (lam.low or lam.value))
+    cells["rayleigh_range"] = Cell("derived", lo, hi, z, "m", "mm")
+
+
+def self_focusing(walk, v: Visit) -> None:
+    """Self-focusing and B-integral of a material stage, for the beam entering it (the pulse
+    only gets longer inside, so the entrance is the worst case)."""
+    name, params, cells, incident, at, columns = v.name, v.params, v.cells, v.incident, v.at, v.columns
+    material = materials.lookup(params["material"])
+    lam = cells.get("wavelength")
+    peak = incident.get("peak_power") or cells.get("peak_power")
+    intensity = incident.get("peak_intensity") or cells.get("peak_intensity")
+    if material.n2 is None or not lam or not lam.value:
+        return  # the walk carries the B-integral of the columns before
+    n0 = float(materials.refractive_index(material, lam.value))
+    p_low = hazards.critical_power(lam.value, n0, material.n2[1])
+    p_high = hazards.critical_power(lam.value, n0, material.n2[0])
+    cells["critical_power"] = Cell("derived", p_low, p_high, math.sqrt(p_low * p_high), "W", "MW")
+    solid = material.name != "air"
+    if peak and peak.value:
+        shown = walk.show("peak_power", peak.value, "MW")
+        crit = walk.show('peak_power', p_low, 'MW') + (
+            "" if p_high / p_low < 1.001 else f" … {walk.show('peak_power', p_high, 'MW')}")
+        n2 = f"{material.n2[0]:.3g}" + ("" if material.n2[1] == material.n2[0] else f"–{material.n2[1]:.3g}")
+        where = f"P_cr = 3.77 λ²/(8π n0 n2) = {crit} for {material.label} (n2 {n2} m²/W, " \
+                f"{material.n2_source})"
+        radius = incident.get("beam_radius") or cells.get("beam_radius")
+        length = params["thickness"][1]
+        z_f = hazards.collapse_distance(peak.value, p_low, lam.value, n0, radius.value) \
+            if radius and radius.value else 0.0
+        if (peak.high or peak.value) > p_low and z_f < length:
+            walk.report.add("self-focusing" if solid else "self-focusing-air",
+                            f"{name}: the peak power {shown} is above the critical power for self-focusing "
+                            f"and the beam collapses within the stage (Marburger's distance "
+                            f"{walk.show('beam_radius', z_f, 'mm')} < {walk.show('beam_radius', length, 'mm')}"
+                            f"), {where}", at, key=True, quantities=(f"{name}.peak_power",))
+        elif (peak.high or peak.value) > p_low:
+            walk.report.add("self-focusing-risk",
+                            f"{name}: the peak power {shown} is above the critical power for self-focusing, "
+                            f"{where}; the collapse distance {walk.show('beam_radius', z_f, 'mm')} is longer "
+                            "than the stage, so the B-integral decides", at, key=True,
+                            quantities=(f"{name}.peak_power",))
+    before = walk.b_total(columns[:-1])
+    if intensity and intensity.value:
+        n2 = math.sqrt(material.n2[0] * material.n2[1])
+        b = hazards.b_integral(lam.value, n2, intensity.value, params["thickness"][1])
+        cells["b_integral"] = Cell("derived", hazards.b_integral(lam.value, material.n2[0], intensity.value,
+                                                                 params["thickness"][1]),
+                                   hazards.b_integral(lam.value, material.n2[1], intensity.value,
+                                                      params["thickness"][1]), b, "1", "1")
+        total = before + b
+        cells["b_integral_total"] = Cell("derived", total, total, total, "1", "1")
+        if total > walk.b_limit >= before:
+            walk.report.add("b-integral",
+                            f"{name}: the accumulated B-integral reaches {total:.3g} rad here ({b:.3g} rad in "
+                            f"this stage; B = (2π/λ) Σ n2 I L), above the limit of {walk.b_limit:g} rad",
+                            at, key=True, quantities=(f"{name}.b_integral",))
+    elif before:
+        cells["b_integral_total"] = Cell("derived", before, before, before, "1", "1")
+
+
+def optic_damage(walk, v: Visit) -> None:
+    raw = v.stage.get("damage_threshold")
+    if not isinstance(raw, dict):
+        return
+    name, incident, at = v.name, v.incident, v.at
+    where = at + ("damage_threshold",)
+    try:
+        rated = walk.c.values.parse_as(f"{name}.damage_threshold.fluence", raw.get("fluence"), "J/m^2", 0.0)
+        tau_ref = (walk.c.values.parse_as(f"{name}.damage_threshold.pulse_duration", raw["pulse_duration"],
+                                          "s", 0.0).typical if "pulse_duration" in raw else None)
+        lam_ref = (walk.c.values.parse_as(f"{name}.damage_threshold.wavelength", raw["wavelength"], "m",
+                                          0.0).typical if "wavelength" in raw else None)
+    except ValueProblem as e:
+        walk.report.add(e.rule, e.message, where)
+        return
+    fluence, tau, lam = (incident.get(q) for q in ("peak_fluence", "pulse_duration", "wavelength"))
+    if not fluence or not fluence.value or not rated.typical:
+        walk.report.add("target-unknown", f"{name}: the peak fluence on this optic is not determined, so its "
+                        "damage threshold cannot be checked", where, key=True)
+        return
+    threshold, how = hazards.scaled_threshold(rated.typical, tau_ref, tau.value if tau else None)
+    notes = []
+    if how == "does not transfer":
+        notes.append(f"the rating is for {walk.show('pulse_duration', tau_ref, 'fs')} and the pulse here is "
+                     f"{walk.show('pulse_duration', tau.value, 'fs')}: below about 10 ps a damage rating does "
+                     "not transfer between durations (common practice), so this comparison is only indicative")
+    elif how != "as rated":
+        notes.append(f"threshold {how} to {walk.show('peak_fluence', threshold, 'J/cm^2')}")
+    if lam_ref and lam and lam.value and abs(lam.value / lam_ref - 1) > 0.05:
+        notes.append(f"rated at {walk.show('wavelength', lam_ref, 'nm')}, used at "
+                     f"{walk.show('wavelength', lam.value, 'nm')}")
+    margin = threshold / fluence.value
+    text = (f"{name}: peak fluence {walk.show('peak_fluence', fluence.value, 'J/cm^2')} on an optic rated "
+            f"{rated.text}; margin {margin:.3g}×" + ("; " + "; ".join(notes) if notes else ""))
+    if margin < 1:
+        walk.report.add("optic-damage", text + ". Expect damage to this optic.", where, key=True)
+    elif margin < walk.safety_factor:
+        walk.report.add("optic-damage-margin", text + f", less than the safety factor {walk.safety_factor:g}.",
+                        where, key=True)
+    elif how == "does not transfer":
+        walk.report.add("damage-rating-not-transferable", text + ".", where, key=True)
+
+
+CHECKS: dict[str, StageCheck] = {c.id: c for c in (
+    StageCheck("photon-energy", "incident", photon_energy, "1/λp = 1/λs + 1/λi for a parametric stage"),
+    StageCheck("measured-spot", "incident", measured_spot, "a measured spot against the diffraction limit"),
+    StageCheck("focus-spot", "column", focus_spot, "Rayleigh range and the paraxial limit of a focus"),
+    StageCheck("self-focusing", "column", self_focusing, "critical power, collapse distance and B-integral"),
+    StageCheck("optic-damage", "column", optic_damage, "peak fluence against a stated damage threshold"),
+)}
+
+EVERY_STAGE = ("optic-damage",)  # checks of every stage, whatever its kind
+
+_unknown = sorted({c for k in STAGE_KINDS.values() for c in k.checks} - set(CHECKS)) or \
+    sorted(set(EVERY_STAGE) - set(CHECKS))
+if _unknown:
+    raise ValueError(f"stage kinds name checks that do not exist: {', '.join(_unknown)}")
+
+
+def checks_of(kind: StageKind, phase: str) -> list[StageCheck]:
+    return [CHECKS[c] for c in kind.checks + EVERY_STAGE if CHECKS[c].phase == phase]

@@ -1,0 +1,139 @@
+"""The end of each branch of the path: its targets, the dispersion that would compress the
+pulse there, and the strong-field figures at high intensity."""
+
+from __future__ import annotations
+
+import math
+
+from speccheck.physics import hazards
+from speccheck.physics.quantities import BY_NAME
+from speccheck.physics.stages import Beam, typical
+from speccheck.reading.units import format_number
+from speccheck.reading.values import Stated, ValueProblem
+from speccheck.records.findings import Cell
+
+
+def finish(walk, columns: list, beam: Beam, target, target_at: tuple) -> None:
+    """Targets are compared with the last column of their branch."""
+    last = columns[-1]
+    if last != "laser":
+        walk.ends.append(last)
+    cells = walk.sheet.get(last, {})
+    compensation(walk, last, beam, target_at)
+    strong_field(walk, last, target, target_at)
+    if not isinstance(target, dict):
+        return
+    for key, raw in target.items():
+        if key not in BY_NAME and key != "spectral_bandwidth":
+            continue  # the schema reports unknown keys
+        try:
+            need = walk.c.values.parse(key, raw, walk.tolerance)
+        except ValueProblem as e:
+            walk.report.add(e.rule, f"target.{e.message}", target_at + (key,))
+            continue
+        cell = cells.get(need.quantity)
+        where = target_at + (key,)
+        if cell is None or cell.value is None and cell.low is None:
+            walk.report.add("target-unknown", f"target {key} {need.text}: the path does not determine "
+                            f"{need.quantity} at {last!r}; state the numbers it needs", where)
+            continue
+        low = cell.low if cell.low is not None else 0.0
+        high = cell.high if cell.high is not None else math.inf
+        value = cell.value if cell.value is not None else (low if low > 0 else high)
+        shown = walk.show(need.quantity, value, need.unit)
+        if low >= need.low and high <= need.high:
+            margin = _margin(value, need)
+            walk.report.add("target-met", f"target {key} {need.text} is met at {last!r}: {shown}{margin}.",
+                            where, quantities=(f"{last}.{need.quantity}",))
+        elif high < need.low or low > need.high:
+            cost = costliest(walk, columns, need)
+            walk.report.add("target-not-met",
+                            f"target {key} {need.text} is not met at {last!r}: the path gives {shown}"
+                            f"{_margin(value, need)}.{cost}", where,
+                            quantities=(f"{last}.{need.quantity}",))
+        else:
+            walk.report.add("target-uncertain",
+                            f"target {key} {need.text} may not be met at {last!r}: the path gives {shown} "
+                            f"({walk.show(need.quantity, low, need.unit)} … "
+                            f"{walk.show(need.quantity, high, need.unit)}), within the tolerances", where,
+                            quantities=(f"{last}.{need.quantity}",))
+
+
+def _margin(value: float, need: Stated) -> str:
+    bound = need.low if need.low > 0 and not math.isfinite(need.high) else need.high \
+        if math.isfinite(need.high) and need.low == 0 else need.typical
+    if not bound or not value:
+        return ""
+    return f", {format_number(value / bound, 3)}× the required {need.text.lstrip('<>=≤≥ ')}"
+
+
+def costliest(walk, columns: list, need: Stated) -> str:
+    """The stage whose column changes the target's quantity the wrong way the most."""
+    q = need.quantity
+    wants_more = need.low > 0 and not math.isfinite(need.high) or (
+        need.typical is not None and need.low > 0)
+    worst, factor = None, None
+    for before, after in zip(columns, columns[1:]):
+        a, b = walk.sheet.get(before, {}).get(q), walk.sheet.get(after, {}).get(q)
+        if not (a and b and a.value and b.value):
+            continue
+        f = b.value / a.value
+        if factor is None or (f < factor if wants_more else f > factor):
+            worst, factor = after, f
+    if worst is None or (wants_more and factor >= 1) or (not wants_more and factor <= 1):
+        return ""
+    change = f"loses a factor {1 / factor:.3g}" if wants_more else f"grows it by a factor {factor:.3g}"
+    return f" The stage that costs the most is {worst!r}: it {change} in {q.replace('_', ' ')}."
+
+
+def compensation(walk, last: str, beam: Beam, at: tuple) -> None:
+    """The GDD that would give the shortest pulse at the end of this branch."""
+    net, tl = beam.net_gdd, beam.tl_duration
+    tau = beam.get("pulse_duration")
+    if not tl or not tau or not typical(tl) or not typical(tau) or typical(tau) < 1.05 * typical(tl):
+        return
+    if not any(k for k in walk.sheet.get(last, {}) if k == "net_gdd"):
+        return
+    walk.report.add("dispersion-compensation",
+                    f"at {last!r} the pulse is {walk.show('pulse_duration', typical(tau), 'fs')} against "
+                    f"{walk.show('pulse_duration', typical(tl), 'fs')} transform-limited: the net GDD "
+                    f"there is {net[1] * 1e30:.4g} fs²; adding {-net[1] * 1e30:.4g} fs² (a compressor or "
+                    "prechirp) would give the shortest pulse", at, key=True)
+
+
+def strong_field(walk, last: str, target, target_at: tuple) -> None:
+    """Ponderomotive energy, a0 and, for a named gas, Keldysh parameter and HHG cutoff."""
+    cells = walk.sheet.get(last, {})
+    intensity, lam = cells.get("peak_intensity"), cells.get("wavelength")
+    if not (intensity and intensity.value and lam and lam.value) or intensity.value < hazards.STRONG_FIELD_FROM:
+        return
+    k = walk.c.units.constants
+    up = hazards.ponderomotive_energy(intensity.value, lam.value, k)
+    a0 = hazards.vector_potential(intensity.value, lam.value, k)
+    cells["ponderomotive_energy"] = Cell("derived", None, None, up, "J", "eV")
+    cells["normalized_vector_potential"] = Cell("derived", None, None, a0, "1", "1")
+    if a0 >= hazards.A0_NOTE_FROM:
+        walk.report.add("relativistic-intensity",
+                        f"at {last!r} the normalized vector potential a0 = {a0:.3g} approaches 1: electrons "
+                        "become relativistic and the non-relativistic strong-field figures lose validity",
+                        target_at, key=True)
+    gas = target.get("gas") if isinstance(target, dict) else None
+    if not isinstance(gas, str):
+        return
+    gas = hazards.GAS_ALIASES.get(gas.lower(), gas.lower())
+    if gas not in hazards.IONIZATION_ENERGY_EV:
+        return  # the schema lists the gases
+    ev = walk.c.units.constants.e
+    ip = hazards.IONIZATION_ENERGY_EV[gas] * ev
+    gamma = hazards.keldysh(ip, up)
+    cutoff = hazards.hhg_cutoff(ip, up)
+    photon = cells.get("photon_energy")
+    cells["ionization_potential"] = Cell("derived", ip, ip, ip, "J", "eV")
+    cells["keldysh_parameter"] = Cell("derived", None, None, gamma, "1", "1")
+    cells["hhg_cutoff_energy"] = Cell("derived", None, None, cutoff, "J", "eV")
+    order = f" (harmonic order {cutoff / photon.value:.0f})" if photon and photon.value else ""
+    regime = "tunnel" if gamma < 1 else "multiphoton"
+    walk.report.add("strong-field-figures",
+                    f"at {last!r} in {gas}: U_p = {up / ev:.3g} eV, Keldysh γ = {gamma:.3g} ({regime} regime), "
+                    f"high-harmonic cutoff I_p + 3.17 U_p = {cutoff / ev:.4g} eV{order}, a0 = {a0:.3g}",
+                    target_at + ("gas",), quantities=(f"{last}.peak_intensity",))

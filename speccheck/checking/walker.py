@@ -103,7 +103,7 @@ class PathWalk:
                 elif p.default is not None:
                     out[p.name] = point(p.default)
                 continue
-            if p.dimension in ("text", "material"):
+            if p.dimension in ("text", "material_name"):
                 if not isinstance(raw, str) or (p.choices and raw not in p.choices):
                     self.report.add("stage-parameter", f"{label}: expected one of {', '.join(p.choices)}"
                                     if p.choices else f"{label}: expected a name", at + (p.name,))
@@ -134,7 +134,7 @@ class PathWalk:
                             f"{', '.join(kind.one_of)}", at, key=True)
             ok = False
         for p in kind.params:  # a named material must be in the material table
-            if ok and p.dimension == "material":
+            if ok and p.dimension == "material_name":
                 try:
                     materials.lookup(out[p.name])
                 except KeyError as e:

@@ -108,7 +108,7 @@ def intrinsic_gdd(duration: Value, tl: Value) -> Value:
 @dataclass(frozen=True)
 class Param:
     name: str
-    dimension: str  # a key of units.DIMENSION_NAMES, "text", or "material" (a name in the material table)
+    dimension: str  # a key of units.DIMENSION_NAMES, "text", or "material_name" (a row of the material table)
     required: bool = False
     default: float | None = None
     choices: tuple = ()
@@ -290,7 +290,7 @@ STAGE_KINDS: dict[str, StageKind] = {k.name: k for k in (
     StageKind("dispersion", (Param("gdd", "s^2", required=True), Param("tod", "s^3")), _dispersion,
               "adds group-delay dispersion (a prechirp, a chirped mirror set)",
               "τ = τ_TL √(1 + (4 ln2 φ/τ_TL²)²) for a Gaussian pulse"),
-    StageKind("material", (Param("material", "material", required=True), Param("thickness", "m", required=True),
+    StageKind("material", (Param("material", "material_name", required=True), Param("thickness", "m", required=True),
                            _T),
               _material, "a thickness of a named glass: GDD from its Sellmeier equation",
               "GDD = GVD × L, GVD = λ³/(2πc²) d²n/dλ²", checks=("self-focusing",)),

@@ -51,6 +51,7 @@ import jsonschema, jsonschema.exceptions
 add("import jsonschema", time.perf_counter() - t0)
 t0 = time.perf_counter()
 import speccheck.cli as cli
+from speccheck.files import spec_files
 import speccheck.checking.document as chk
 from speccheck.reading.units import UnitSystem
 add("import speccheck (its own modules, yaml)", time.perf_counter() - t0)
@@ -74,8 +75,14 @@ import speccheck.checking.column as blk
 block = blk.BlockCheck
 if block is not None:
     wrap(block, "run", "  block check, total")
-    for m in ("parse_values", "report_conflicts", "cells", "report_limits", "report_assumptions"):
-        wrap(block, m, f"    block: {m}")
+    wrap(block, "parse_values", "    block: parse_values")
+import speccheck.checking.cells as cells_mod
+import speccheck.checking.column_limits as limits_mod
+import speccheck.checking.conflicts as conflicts_mod
+wrap(conflicts_mod, "report", "    block: conflicts")
+wrap(cells_mod, "build", "    block: cells")
+wrap(limits_mod, "report_limits", "    block: limits")
+wrap(limits_mod, "report_assumptions", "    block: assumptions")
 wrap(blk, "diagnose", "    block: diagnose (propagation)")
 
 t0 = time.perf_counter()
@@ -83,7 +90,7 @@ units = UnitSystem()
 add("UnitSystem() (pint registry, constants)", time.perf_counter() - t0)
 checker = chk.Checker(units)
 t0 = time.perf_counter()
-files = cli._spec_files([folder])
+files = spec_files([folder])
 add("find files", time.perf_counter() - t0)
 results = []
 for name, path in files:

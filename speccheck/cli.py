@@ -11,18 +11,15 @@ from __future__ import annotations
 
 import argparse
 import dataclasses
-import glob
 import os
 import re
 import sys
 from pathlib import Path
 
 from speccheck._version import __version__
-from speccheck.records.findings import FileResult, Finding
+from speccheck import files
+from speccheck.records.findings import FileResult
 from speccheck.reading.loader import Limits
-
-SPEC_SUFFIXES = (".yaml", ".yml")
-
 
 def _parser() -> argparse.ArgumentParser:
     p = argparse.ArgumentParser(prog="speccheck", description="Check ultrafast laser experiment specs: "
@@ -73,9 +70,6 @@ def _parser() -> argparse.ArgumentParser:
     return p
 
 
-_GLOB = re.compile(r"[*?[]")
-
-
 def _positive_int(text: str) -> int:
     try:
         value = int(text)
@@ -84,98 +78,6 @@ def _positive_int(text: str) -> int:
     if value < 1:
         raise argparse.ArgumentTypeError(f"expected a number of at least 1, got {value}")
     return value
-
-
-@dataclasses.dataclass
-class _Expansion:
-    files: list[tuple[str, Path]]  # (name as shown, path), in order, each file once
-    unmatched: list[str]  # globs that matched no file
-    skipped: list[str]  # files named on the command line that the configuration leaves out
-    found: set[str] = dataclasses.field(default_factory=set)  # names found in a folder or by a glob
-
-    def __iter__(self):  # iterating gives the files, as the plain list of earlier versions did
-        return iter(self.files)
-
-    def __len__(self) -> int:
-        return len(self.files)
-
-
-def _walk(folder: Path, selector) -> list[Path]:
-    """Spec files under a folder, sorted; hidden and excluded folders are not entered."""
-    found = []
-    for root, dirs, files in os.walk(folder):
-        dirs[:] = sorted(d for d in dirs if not d.startswith(".")
-                         and not (selector and selector.excluded(os.path.join(root, d))))
-        found += [Path(root) / f for f in files if f.endswith(SPEC_SUFFIXES) and not f.startswith(".")
-                  and (selector is None or selector.selected(os.path.join(root, f)))]
-    return sorted(found)
-
-
-def _spec_files(paths: list[str], selector=None) -> _Expansion:
-    """Expand folders and globs into spec files: each argument in order, each expansion sorted."""
-    out = _Expansion([], [], [])
-    seen: set[str] = set()
-
-    def add(name: str, path: Path, found: bool = True) -> None:
-        key = os.path.normcase(os.path.abspath(name))
-        if key not in seen:
-            seen.add(key)
-            out.files.append((name, path))
-            if found:
-                out.found.add(name)
-
-    for raw in paths:
-        path = Path(raw)
-        if _GLOB.search(raw) and not os.path.lexists(raw):
-            matches = sorted(glob.glob(raw, recursive=True))
-            if not any(os.path.isdir(m) or m.endswith(SPEC_SUFFIXES) for m in matches):
-                out.unmatched.append(raw)
-            for match in matches:
-                if os.path.isdir(match):
-                    for f in _walk(Path(match), selector):
-                        add(str(f), f)
-                elif match.endswith(SPEC_SUFFIXES) and (selector is None or selector.selected(match)):
-                    add(match, Path(match))
-        elif path.is_dir():
-            for f in _walk(path, selector):
-                add(str(f), f)
-        elif selector is not None and os.path.lexists(raw) and not selector.selected(raw):
-            out.skipped.append(raw)
-        else:
-            add(raw, path, found=False)  # named: read whatever it is (a pipe from the shell, too)
-    return out
-
-
-def read_beside(name: str, spec: str, max_bytes: int = 50 * 1024 * 1024) -> bytes:
-    """Read a data file named in a spec: a relative path inside the spec's folder, size-bounded."""
-    folder = Path(spec).resolve().parent
-    target = (folder / name).resolve()
-    if Path(name).is_absolute() or not target.is_relative_to(folder):
-        raise ValueError("data files must be given relative to the spec, inside its folder")
-    if not _regular(target):  # a named pipe or a device would block or never end
-        raise ValueError("not a regular file")
-    if target.stat().st_size > max_bytes:
-        raise ValueError(f"larger than {max_bytes} bytes")
-    with open(target, "rb") as f:
-        return f.read()
-
-
-def _regular(path: Path) -> bool:
-    import stat
-
-    return stat.S_ISREG(path.stat().st_mode)
-
-
-class _NotRegular(OSError):
-    strerror = "not a regular file (a pipe, socket or device found in a folder is not read)"
-
-
-def _read_failure(name: str, exc: OSError) -> FileResult:
-    reason = exc.strerror or type(exc).__name__
-    if isinstance(exc, IsADirectoryError):
-        reason = "is a directory"
-    finding = Finding("unreadable-file", "error", f"cannot read {name}: {reason}", name)
-    return FileResult(name, (finding,))
 
 
 def _config(args, stderr):
@@ -217,32 +119,32 @@ def _check(args, stdout, stderr) -> int:
     config = _config(args, stderr)
     if config is None:
         return 2
-    expansion = _spec_files(args.paths, cfg.Selector(config) if config.include or config.exclude else None)
+    expansion = files.spec_files(args.paths, cfg.Selector(config) if config.include or config.exclude else None)
     for pattern in expansion.unmatched:
         stderr.write(f"speccheck: no spec file matches {pattern!r}\n")
     if not expansion.files:
         stderr.write("speccheck: no spec files (*.yaml, *.yml) found in " + ", ".join(args.paths) + "\n")
     for name in expansion.skipped:
         stderr.write(f"speccheck: skipped {name}: left out by the include/exclude patterns of {config.path}\n")
-    if args.output and any(_same_file(args.output, path) for _, path in expansion.files):
+    if args.output and any(files.same_file(args.output, path) for _, path in expansion.files):
         stderr.write(f"speccheck: {args.output} is one of the specs being checked; input files are never "
                      "written\n")
         return 2
     units = UnitSystem()
     tolerance = config.tolerance if config.tolerance is not None else DEFAULT_TOLERANCE
     limits = Limits(max_bytes=args.max_file_size, max_nodes=args.max_nodes, max_depth=args.max_depth)
-    checker = Checker(units, Options(limits=limits, default_tolerance=tolerance), read=read_beside)
+    checker = Checker(units, Options(limits=limits, default_tolerance=tolerance), read=files.read_beside)
     results: list[FileResult] = []
     io_failure = bool(expansion.unmatched)
     for name, path in expansion.files:
         try:
-            if name in expansion.found and not _regular(path):
-                raise _NotRegular()
+            if name in expansion.found and not files.regular(path):
+                raise files.NotRegular()
             data = path.read_bytes()
         except OSError as exc:
             io_failure = True
             stderr.write(f"speccheck: cannot read {name}: {exc.strerror or exc}\n")
-            results.append(_read_failure(name, exc))
+            results.append(files.read_failure(name, exc))
             continue
         result = checker.check_text(data, name)
         findings = suppress.apply(data, result.findings, name)
@@ -255,9 +157,9 @@ def _check(args, stdout, stderr) -> int:
     write = writer("review" if args.review else args.format)
     if args.output:
         try:
-            _write_atomically(Path(args.output), lambda out: write(results, out, options))
+            files.write_atomically(Path(args.output), lambda out: write(results, out, options))
         except OSError as exc:
-            stderr.write(f"speccheck: cannot write {args.output}: {_reason(exc)}\n")
+            stderr.write(f"speccheck: cannot write {args.output}: {files.reason(exc)}\n")
             return 2
     else:
         write(results, stdout, options)
@@ -265,41 +167,6 @@ def _check(args, stdout, stderr) -> int:
     if io_failure:
         return 2
     return 1 if cfg.failing(results, fail_on) else 0
-
-
-def _same_file(a: str, b: Path) -> bool:
-    try:
-        return os.path.samefile(a, b)
-    except OSError:
-        return False
-
-
-def _reason(exc: OSError) -> str:
-    if isinstance(exc, IsADirectoryError):
-        return "is a directory"
-    return exc.strerror or type(exc).__name__
-
-
-def _write_atomically(target: Path, fill) -> None:
-    """Write through a temporary file in the same folder and a rename: readers never see half a file."""
-    import stat
-    import tempfile
-
-    try:  # keep the permissions of the file replaced, or give a new one the usual ones
-        mode = stat.S_IMODE(target.stat().st_mode)
-    except OSError:
-        umask = os.umask(0)
-        os.umask(umask)
-        mode = 0o666 & ~umask
-    fd, tmp = tempfile.mkstemp(prefix=f".{target.name}.", dir=target.parent or ".")
-    try:
-        with os.fdopen(fd, "w", encoding="utf-8", newline="\n") as out:
-            fill(out)
-        os.chmod(tmp, mode)
-        os.replace(tmp, target)
-    except BaseException:
-        Path(tmp).unlink(missing_ok=True)
-        raise
 
 
 def _rules(stdout) -> int:
@@ -365,9 +232,9 @@ def _new(args, stdout, stderr) -> int:
         return 2
     text = starter(args.kind, target.name, args.schema)
     try:
-        _write_atomically(target, lambda out: out.write(text))
+        files.write_atomically(target, lambda out: out.write(text))
     except OSError as exc:
-        stderr.write(f"speccheck: cannot write {args.output}: {_reason(exc)}\n")
+        stderr.write(f"speccheck: cannot write {args.output}: {files.reason(exc)}\n")
         return 2
     stderr.write(f"speccheck: wrote {args.output} ({args.kind}); check it with `speccheck check {args.output}`\n")
     return 0

@@ -32,7 +32,7 @@ def test_every_example_is_listed_here():
 @pytest.fixture(scope="module")
 def reading_checker(units):
     from speccheck.checking.document import Checker
-    from speccheck.cli import read_beside
+    from speccheck.files import read_beside
 
     return Checker(units, read=read_beside)
 

@@ -12,7 +12,7 @@ import numpy as np
 import pytest
 
 from speccheck.checking.document import Checker
-from speccheck.cli import read_beside
+from speccheck.files import read_beside
 from speccheck.reading.measured import DataProblem, analyse_autocorrelation, analyse_spectrum, read_table
 
 C = 299792458.0  # exact (SI)

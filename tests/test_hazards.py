@@ -30,9 +30,11 @@ def test_critical_power_of_air_at_800_nm_is_a_few_gw():
 
 
 def test_marburger_collapse_distance_by_hand():
-    # z_f = 0.367 k w² / √((√(P/Pcr) − 0.852)² − 0.0219); P/Pcr = 100, k = 2π/λ, w = 1 mm.
+    # z_f = 0.367 k a² / √((√(P/Pcr) − 0.852)² − 0.0219) with a the 1/e intensity radius,
+    # a² = w²/2 for the 1/e² radius w = 1 mm (the radius settled in test_self_focusing_nlse.py);
+    # P/Pcr = 100, k = 2π/λ.
     k = 2 * math.pi / 800e-9
-    expected = 0.367 * k * 1e-6 / math.sqrt((10 - 0.852) ** 2 - 0.0219)
+    expected = 0.367 * k * 1e-6 / 2 / math.sqrt((10 - 0.852) ** 2 - 0.0219)
     assert hazards.collapse_distance(100.0, 1.0, 800e-9, 1.0, 1e-3) == pytest.approx(expected)
     assert hazards.collapse_distance(0.5, 1.0, 800e-9, 1.0, 1e-3) == math.inf
 

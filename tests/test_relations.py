@@ -84,8 +84,10 @@ def test_peak_power_factor_matches_published_tables(shape, published):
 
 
 @pytest.mark.parametrize("shape, published", [
-    # Published transform-limited time-bandwidth products (same tables, from memory).
-    ("gaussian", 0.441), ("sech2", 0.315), ("lorentzian", 0.221), ("flat_top", 0.886)])
+    # Published transform-limited time-bandwidth products (same tables, from memory).  The
+    # tables' Lorentzian 0.221 is not of the intensity Lorentzian the table defines, which has
+    # none (test_shapes.py).
+    ("gaussian", 0.441), ("sech2", 0.315), ("flat_top", 0.886)])
 def test_transform_limits_match_published_tables(shape, published):
     assert PULSE_SHAPES[shape].transform_limit == pytest.approx(published, abs=0.0015)
 

@@ -31,13 +31,13 @@ _STAGE_KEYS = {"name", "kind", "measured", "branches", "damage_threshold"} | {
     p.name for k in STAGE_KINDS.values() for p in k.params}
 
 
-def beam_from(cells: dict, old: Beam | None, shape_limit: float) -> Beam:
+def beam_from(cells: dict, old: Beam | None, shape_limit: float | None) -> Beam:
     values = {q: interval(cells[q]) for q in CARRIED if q in cells}
     if old is not None:
         return replace(old, values=values, stage_gdd=None)
     if "transform_limited_duration" in cells:
         tl = interval(cells["transform_limited_duration"])
-    elif "spectral_bandwidth" in cells and typical(values["spectral_bandwidth"]):
+    elif shape_limit is not None and "spectral_bandwidth" in cells and typical(values["spectral_bandwidth"]):
         bw = values["spectral_bandwidth"]
         tl = (shape_limit / bw[2], shape_limit / typical(bw), shape_limit / bw[0] if bw[0] else math.inf)
     elif "pulse_duration" in values:

@@ -19,7 +19,7 @@ class Limit:
     rule: str
     quantity: str
     side: str  # "min": quantity must be >= bound; "max": quantity must be < bound
-    bound: Callable[[Context], float]
+    bound: Callable[[Context], float | None]  # None: no bound for this shape
     what: str  # describes the bound; may use {shape}
     consequence: str
     source: str
@@ -32,6 +32,8 @@ class Limit:
 
     def violated(self, low: float, high: float, context: Context) -> bool:
         b = self.bound(context)
+        if b is None:
+            return False
         return high < b if self.side == "min" else low >= b
 
 
@@ -42,7 +44,7 @@ LIMITS: tuple[Limit, ...] = (
           "no pulse of this shape can be that short with that bandwidth",
           "Fourier transform limit; published pulse-shape tables"),
     Limit("strongly-chirped", "time_bandwidth_product", "max",
-          lambda x: 2.0 * x.shape.transform_limit,
+          lambda x: None if x.shape.transform_limit is None else 2.0 * x.shape.transform_limit,
           "twice the transform limit of a {shape} pulse",
           "the pulse is strongly chirped (or a width is not what it says)",
           "common practice"),

@@ -141,9 +141,9 @@ _RULES = (
          "peak power 50 MW through 10 mm of fused silica at 800 nm (P_cr ≈ 2-3 MW)",
          "peak power 1 MW through 10 mm of fused silica"),
     Rule("self-focusing-risk", "note", "a peak power above the critical power, in a stage too short to collapse",
-         "Above P_cr a collimated beam collapses after Marburger's distance z_f = 0.367 k w² / "
-         "√((√(P/P_cr) − 0.852)² − 0.0219); when z_f is longer than the stage, the beam does not collapse "
-         "there, and the accumulated B-integral is the figure to watch."),
+         "Above P_cr a collimated beam collapses after Marburger's distance z_f = 0.367 k a² / "
+         "√((√(P/P_cr) − 0.852)² − 0.0219), a = w/√2 the 1/e intensity radius; when z_f is longer than "
+         "the stage, the beam does not collapse there, and the accumulated B-integral is the figure to watch."),
     Rule("self-focusing-air", "warning", "a peak power above the critical power for self-focusing in air",
          "P_cr of air is a few GW near 800 nm (n2 ≈ 3-4e-23 m²/W): long air paths at higher peak power "
          "filament; a vacuum or helium path avoids it."),
@@ -187,9 +187,10 @@ _RULES = (
          "average_power: 2 W\nrepetition_rate: 80 MHz\npulse_energy: 25 nJ"),
     Rule("below-transform-limit", "error", "bandwidth and duration whose product is below the transform limit",
          "A pulse of a given shape cannot be shorter than its Fourier transform limit: "
-         "Δν·τ ≥ 0.441 (Gaussian), 0.315 (sech²), 0.221 (Lorentzian), 0.886 (flat top) for FWHMs "
-         "(published pulse-shape tables). A smaller product is physically impossible; often the "
-         "autocorrelation width or the bandwidth in the wrong unit is the cause.",
+         "Δν·τ ≥ 0.441 (Gaussian), 0.315 (sech²), 0.886 (flat top) for FWHMs "
+         "(published pulse-shape tables); a Lorentzian intensity has no such limit and is not checked. "
+         "A smaller product is physically impossible; often the autocorrelation width or the bandwidth "
+         "in the wrong unit is the cause.",
          "wavelength: 800 nm\nspectral_bandwidth: 2 nm\npulse_duration: 50 fs",
          "wavelength: 800 nm\nspectral_bandwidth: 20 nm\npulse_duration: 50 fs"),
     Rule("strongly-chirped", "note", "a time-bandwidth product far above the transform limit",

@@ -11,6 +11,7 @@ from __future__ import annotations
 
 import argparse
 import dataclasses
+import errno
 import os
 import re
 import sys
@@ -109,11 +110,11 @@ def _fail_level(args, config) -> str:
     return config.fail_on
 
 
-def _check(args, stdout, stderr) -> int:
+def _check(args, stdout, stderr, stdin=None) -> int:
     from speccheck.reading import config as cfg
     from speccheck.reading import suppress
     from speccheck.checking.document import DEFAULT_TOLERANCE, Checker, Options
-    from speccheck.formats import OutputOptions, writer
+    from speccheck.formats import MACHINE_FORMATS, OutputOptions, writer
     from speccheck.reading.units import UnitSystem
 
     config = _config(args, stderr)
@@ -126,47 +127,63 @@ def _check(args, stdout, stderr) -> int:
         stderr.write("speccheck: no spec files (*.yaml, *.yml) found in " + ", ".join(args.paths) + "\n")
     for name in expansion.skipped:
         stderr.write(f"speccheck: skipped {name}: left out by the include/exclude patterns of {config.path}\n")
-    if args.output and any(files.same_file(args.output, path) for _, path in expansion.files):
-        stderr.write(f"speccheck: {args.output} is one of the specs being checked; input files are never "
-                     "written\n")
-        return 2
+    inputs = [str(path) for name, path in expansion.files if name != "-"] + (
+        [str(config.path)] if getattr(config, "path", None) else [])
+    target = None
+    if args.output:
+        try:
+            target = files.output_target(args.output, inputs)
+        except files.OutputRefused as exc:
+            stderr.write(f"speccheck: cannot write {files.printable(args.output)}: {exc}\n")
+            return 2
     units = UnitSystem()
     tolerance = config.tolerance if config.tolerance is not None else DEFAULT_TOLERANCE
     limits = Limits(max_bytes=args.max_file_size, max_nodes=args.max_nodes, max_depth=args.max_depth)
-    checker = Checker(units, Options(limits=limits, default_tolerance=tolerance), read=files.read_beside)
+    reader = files.DataReader()
+    checker = Checker(units, Options(limits=limits, default_tolerance=tolerance), read=reader)
     results: list[FileResult] = []
     io_failure = bool(expansion.unmatched)
     for name, path in expansion.files:
+        shown = files.STDIN_NAME if name == "-" else files.printable(name)
         try:
-            if name in expansion.found and not files.regular(path):
-                raise files.NotRegular()
-            data = path.read_bytes()
+            data = files.read_stdin(stdin, limits.max_bytes) if name == "-" else files.read_spec(path, limits.max_bytes)
         except OSError as exc:
             io_failure = True
-            stderr.write(f"speccheck: cannot read {name}: {exc.strerror or exc}\n")
-            results.append(files.read_failure(name, exc))
+            stderr.write(f"speccheck: cannot read {shown}: {files.reason(exc)}\n")
+            results.append(files.read_failure(shown, exc))
             continue
-        result = checker.check_text(data, name)
-        findings = suppress.apply(data, result.findings, name)
+        try:
+            result = checker.check_text(data, shown)
+            findings = suppress.apply(data, result.findings, shown)
+        except Exception as exc:  # the last line of defence: one file's failure costs only that file
+            io_failure = True
+            results.append(files.internal_error(shown, exc))
+            continue
         results.append(result if findings is result.findings else dataclasses.replace(result, findings=findings))
     results = cfg.apply(results, config)
     fail_on = _fail_level(args, config)
     to_terminal = args.output is None and hasattr(stdout, "isatty") and stdout.isatty()
     color = (args.color or to_terminal) and not args.no_color and not os.environ.get("NO_COLOR")
     options = OutputOptions(units=units, color=color, show_sheet=not args.no_sheet, fail_on=fail_on)
-    write = writer("review" if args.review else args.format)
-    if args.output:
+    chosen = "review" if args.review else args.format
+    write = writer(chosen)
+    code = 2 if io_failure else 1 if cfg.failing(results, fail_on) else 0
+    if target is not None:
+        read_data = [p for p in reader.read_paths if files.same_file(str(target), Path(p))]
+        if read_data:
+            stderr.write(f"speccheck: cannot write {files.printable(args.output)}: it is "
+                         f"{files.printable(read_data[0])}, a data file this run reads; input files are never "
+                         "written\n")
+            return 2
         try:
-            files.write_atomically(Path(args.output), lambda out: write(results, out, options))
+            files.write_atomically(target, lambda out: write(results, out, options))
         except OSError as exc:
             stderr.write(f"speccheck: cannot write {args.output}: {files.reason(exc)}\n")
             return 2
-    else:
-        write(results, stdout, options)
-    units.save()  # remember pint's answers for the next run
-    if io_failure:
+    elif not files.write_stdout(stdout, stderr, lambda out: write(results, out, options), chosen in MACHINE_FORMATS):
         return 2
-    return 1 if cfg.failing(results, fail_on) else 0
+    units.save()  # remember pint's answers for the next run
+    return code
 
 
 def _rules(stdout) -> int:
@@ -230,9 +247,14 @@ def _new(args, stdout, stderr) -> int:
     if os.path.lexists(target) and not args.force:
         stderr.write(f"speccheck: {args.output} exists; use --force to replace it\n")
         return 2
+    try:
+        real = files.output_target(args.output)
+    except files.OutputRefused as exc:
+        stderr.write(f"speccheck: cannot write {files.printable(args.output)}: {exc}\n")
+        return 2
     text = starter(args.kind, target.name, args.schema)
     try:
-        files.write_atomically(target, lambda out: out.write(text))
+        files.write_atomically(real, lambda out: out.write(text))
     except OSError as exc:
         stderr.write(f"speccheck: cannot write {args.output}: {files.reason(exc)}\n")
         return 2
@@ -248,16 +270,16 @@ def _relations(stdout) -> int:
     return 0
 
 
-def run(argv: list[str], stdout=None, stderr=None) -> int:
-    stdout = stdout or sys.stdout
-    stderr = stderr or sys.stderr
+def run(argv: list[str], stdout=None, stderr=None, stdin=None) -> int:
+    stdout = stdout if stdout is not None else sys.stdout
+    stderr = stderr if stderr is not None else (sys.stderr or open(os.devnull, "w"))
     parser = _parser()
     try:
         args = parser.parse_args(argv)
     except SystemExit as exc:  # argparse exits on --help, --version and usage errors
         return 0 if exc.code in (0, None) else 2
     if args.command == "check":
-        return _check(args, stdout, stderr)
+        return _check(args, stdout, stderr, stdin)
     if args.command == "rules":
         return _rules(stdout)
     if args.command == "explain":
@@ -275,11 +297,35 @@ def run(argv: list[str], stdout=None, stderr=None) -> int:
     return 2
 
 
+class _Closed:
+    """Standard output when the process was started with it closed: every write fails."""
+
+    def write(self, text: str) -> int:
+        raise OSError(errno.EBADF, "standard output is closed")
+
+    def flush(self) -> None:
+        pass
+
+
+def _terminated(signum, frame) -> None:
+    raise SystemExit(128 + signum)  # unwinds, so a half-written report's temporary file is removed
+
+
 def main() -> None:
+    import signal
+
     try:
-        code = run(sys.argv[1:])
+        signal.signal(signal.SIGTERM, _terminated)
+    except (ValueError, OSError, AttributeError):  # not the main thread, or no SIGTERM here
+        pass
+    try:
+        code = run(sys.argv[1:], stdout=sys.stdout if sys.stdout is not None else _Closed())
     except KeyboardInterrupt:
         code = 130
     except BrokenPipeError:
+        files.silence(sys.stdout)
         code = 0
+    except OSError as exc:
+        (sys.stderr or sys.__stderr__).write(f"speccheck: {files.reason(exc)}\n") if sys.stderr else None
+        code = 2
     sys.exit(code)

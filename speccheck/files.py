@@ -5,11 +5,16 @@ command line touch the file system; the checker gets text and an injected reader
 from __future__ import annotations
 
 import dataclasses
+import errno
 import glob
 import os
 import re
+import stat
+import sys
 from pathlib import Path
 
+from speccheck.formats import inert
+from speccheck.reading.disk import kind_of, read_regular
 from speccheck.records.findings import FileResult, Finding
 
 SPEC_SUFFIXES = (".yaml", ".yml")
@@ -47,7 +52,7 @@ def spec_files(paths: list[str], selector=None) -> Expansion:
     seen: set[str] = set()
 
     def add(name: str, path: Path, found: bool = True) -> None:
-        key = os.path.normcase(os.path.abspath(name))
+        key = name if name == "-" else os.path.normcase(os.path.realpath(name))  # once, however reached
         if key not in seen:
             seen.add(key)
             out.files.append((name, path))
@@ -56,7 +61,9 @@ def spec_files(paths: list[str], selector=None) -> Expansion:
 
     for raw in paths:
         path = Path(raw)
-        if _GLOB.search(raw) and not os.path.lexists(raw):
+        if raw == "-":
+            add("-", path, found=False)  # standard input
+        elif _GLOB.search(raw) and not os.path.lexists(raw):
             matches = sorted(glob.glob(raw, recursive=True))
             if not any(os.path.isdir(m) or m.endswith(SPEC_SUFFIXES) for m in matches):
                 out.unmatched.append(raw)
@@ -72,32 +79,50 @@ def spec_files(paths: list[str], selector=None) -> Expansion:
         elif selector is not None and os.path.lexists(raw) and not selector.selected(raw):
             out.skipped.append(raw)
         else:
-            add(raw, path, found=False)  # named: read whatever it is (a pipe from the shell, too)
+            add(raw, path, found=False)  # named: read if it is a regular file
     return out
 
 
-def read_beside(name: str, spec: str, max_bytes: int = 50 * 1024 * 1024) -> bytes:
-    """Read a data file named in a spec: a relative path inside the spec's folder, size-bounded."""
-    folder = Path(spec).resolve().parent
-    target = (folder / name).resolve()
+class DataReader:
+    """Reads the data files a spec names beside it, and remembers which it read (so the report
+    can never be written over one of them)."""
+
+    def __init__(self, max_bytes: int = 50 * 1024 * 1024) -> None:
+        self.max_bytes = max_bytes
+        self.read_paths: set[str] = set()
+
+    def __call__(self, name: str, spec: str) -> bytes:
+        return read_beside(name, spec, self.max_bytes, self.read_paths)
+
+
+def read_beside(name: str, spec: str, max_bytes: int = 50 * 1024 * 1024, read_paths: set | None = None) -> bytes:
+    """Read a data file named in a spec: a relative path inside the spec's folder, a regular
+    file, size-bounded."""
+    try:
+        folder = Path(spec).resolve().parent
+        target = (folder / name).resolve()
+    except (OSError, RuntimeError):  # a symlink loop ("Symlink loop from …")
+        raise ValueError("the path cannot be resolved (a symbolic link loop?)") from None
     if Path(name).is_absolute() or not target.is_relative_to(folder):
         raise ValueError("data files must be given relative to the spec, inside its folder")
-    if not regular(target):  # a named pipe or a device would block or never end
-        raise ValueError("not a regular file")
-    if target.stat().st_size > max_bytes:
+    if read_paths is not None:
+        read_paths.add(str(target))
+    data = read_regular(target, max_bytes)
+    if len(data) > max_bytes:
         raise ValueError(f"larger than {max_bytes} bytes")
-    with open(target, "rb") as f:
-        return f.read()
+    return data
+
+
+def read_spec(path: Path, max_bytes: int) -> bytes:
+    """A spec file's bytes: a regular file only, at most ``max_bytes + 1`` of them (the loader
+    reports a longer text as over the limit)."""
+    return read_regular(path, max_bytes)
 
 
 def regular(path: Path) -> bool:
     import stat
 
     return stat.S_ISREG(path.stat().st_mode)
-
-
-class NotRegular(OSError):
-    strerror = "not a regular file (a pipe, socket or device found in a folder is not read)"
 
 
 def read_failure(name: str, exc: OSError) -> FileResult:
@@ -121,9 +146,35 @@ def reason(exc: OSError) -> str:
     return exc.strerror or type(exc).__name__
 
 
+class OutputRefused(Exception):
+    """A report path that is not a regular file or a new path; ``str()`` says why."""
+
+
+def output_target(name: str, inputs=()) -> Path:
+    """The real path to write a report named ``name`` to: a regular file (through a symbolic link,
+    which stays) or a new path in an existing folder, and none of the ``inputs`` the run reads."""
+    try:
+        st = os.stat(name)  # follows links: what would be written is what the link points to
+    except FileNotFoundError:
+        st = None
+    except OSError as exc:
+        raise OutputRefused(reason(exc)) from None
+    if st is not None and not stat.S_ISREG(st.st_mode):
+        raise OutputRefused(f"it is {kind_of(st.st_mode)}; a report is written only to a regular file or a "
+                            "new path")
+    real = Path(os.path.realpath(name))
+    if not real.parent.is_dir():
+        raise OutputRefused(f"the folder {Path(name).parent} does not exist")
+    for item in inputs:
+        if st is not None and same_file(str(real), Path(item)):
+            raise OutputRefused(f"it is {printable(str(item))}, which this run reads; input files are never "
+                                "written")
+    return real
+
+
 def write_atomically(target: Path, fill) -> None:
-    """Write through a temporary file in the same folder and a rename: readers never see half a file."""
-    import stat
+    """Write through a temporary file in the same folder and a rename: readers never see half a file.
+    ``target`` is a real path (``output_target``), so a symbolic link to it stays a link."""
     import tempfile
 
     try:  # keep the permissions of the file replaced, or give a new one the usual ones
@@ -141,3 +192,75 @@ def write_atomically(target: Path, fill) -> None:
     except BaseException:
         Path(tmp).unlink(missing_ok=True)
         raise
+
+
+def internal_error(name: str, exc: BaseException) -> FileResult:
+    """The result of a file whose check failed inside speccheck: one finding that says so."""
+    where = ""
+    tb = exc.__traceback__
+    while tb is not None:  # the innermost frame inside speccheck, for the report
+        if "speccheck" in tb.tb_frame.f_code.co_filename:
+            where = f" in {Path(tb.tb_frame.f_code.co_filename).name}:{tb.tb_frame.f_code.co_name}"
+        tb = tb.tb_next
+    finding = Finding("internal-error", "error",
+                      f"speccheck failed while checking this file ({type(exc).__name__}{where}), so its check is "
+                      "incomplete; please report it with this spec", name)
+    return FileResult(name, (finding,))
+
+
+STDIN_NAME = "<stdin>"
+
+
+def printable(name: str) -> str:
+    """A file name as reports show it: bytes that are not UTF-8 (kept by the file system's
+    decoding as lone surrogates) and control characters become visible escapes."""
+    return inert(name)
+
+
+def read_stdin(stdin, max_bytes: int) -> bytes:
+    """``-``: the spec from standard input, with the same size limit as a file."""
+    stream = stdin if stdin is not None else sys.stdin
+    if stream is None:
+        raise OSError(errno.EBADF, "standard input is closed")
+    raw = getattr(stream, "buffer", stream)
+    data = raw.read(max_bytes + 1)
+    return data.encode("utf-8") if isinstance(data, str) else data
+
+
+def silence(stream) -> None:
+    """After a broken pipe: point the stream at the null device, so flushing it at exit is quiet."""
+    try:
+        fd = stream.fileno()
+        null = os.open(os.devnull, os.O_WRONLY)
+        os.dup2(null, fd)
+        os.close(null)
+    except (OSError, ValueError, AttributeError):
+        pass
+
+
+def write_stdout(stdout, stderr, fill, machine: bool) -> bool:
+    """Write the report to standard output; False (after saying why) when it cannot be written.
+
+    Machine formats (JSON, SARIF, JUnit XML, CSV, HTML) are UTF-8 whatever the locale says; the
+    formats for people follow the terminal's encoding, with what it cannot show escaped.  A
+    reader that stops early (``| head``) is not a failure: the run's exit code still stands."""
+    if stdout is None:
+        stderr.write("speccheck: standard output is closed; name a report file with -o FILE\n")
+        return False
+    if hasattr(stdout, "reconfigure"):
+        try:
+            stdout.reconfigure(**({"encoding": "utf-8", "errors": "strict"} if machine
+                                  else {"errors": "backslashreplace"}))
+        except (OSError, ValueError, AttributeError):
+            pass
+    try:
+        fill(stdout)
+        stdout.flush()
+    except BrokenPipeError:
+        silence(stdout)
+        return True
+    except OSError as exc:
+        silence(stdout)
+        stderr.write(f"speccheck: cannot write the report to standard output: {reason(exc)}\n")
+        return False
+    return True

@@ -7,7 +7,8 @@ imported only when chosen, so the JSON path never imports rich.
 from __future__ import annotations
 
 import importlib
-from dataclasses import dataclass
+import re
+from dataclasses import dataclass, replace
 
 FORMATS: dict[str, str] = {
     "human": "speccheck.formats.human",
@@ -21,6 +22,52 @@ FORMATS: dict[str, str] = {
 }
 
 
+# Formats a program reads: always UTF-8 (the formats for people follow the terminal's encoding).
+MACHINE_FORMATS = frozenset({"json", "sarif", "junit", "csv", "html"})
+
+# Characters that must never reach a terminal or a page raw: C0 and C1 controls (ESC starts
+# terminal sequences, CR rewrites a line), the line and paragraph separators, the
+# bidirectional overrides that reorder what is shown, and lone surrogates (bytes of a file
+# name that are not UTF-8).  Tab stays.
+_UNSAFE = re.compile("[\x00-\x08\x0a-\x1f\x7f-\x9f\u2028\u2029\u202a-\u202e\u2066-\u2069\ud800-\udfff]")
+
+
+def _escape(m: re.Match) -> str:
+    code = ord(m.group())
+    if 0xDC80 <= code <= 0xDCFF:  # a byte the file system's decoding could not read as UTF-8
+        return f"\\x{code - 0xDC00:02x}"
+    if code == 0x0A:
+        return "\\n"
+    return f"\\x{code:02x}" if code < 0x100 else f"\\u{code:04x}"
+
+
+def inert(text: str) -> str:
+    """Text from a spec made safe to show: unsafe characters as visible escapes (``\\x1b``)."""
+    return _UNSAFE.sub(_escape, text) if _UNSAFE.search(text) else text
+
+
+def inert_results(results: list) -> list:
+    """The results with every text that can come from a spec made inert (``inert``)."""
+    return [_inert_result(r) for r in results]
+
+
+def _inert_result(r):
+    texts = [r.path, r.title or "", *r.sheet, *r.branch_ends, *r.operating_points]
+    texts += [t for f in r.findings for t in (f.message, f.path, f.suspect or "", *f.quantities, *f.candidates)]
+    texts += [c.text for cells in r.sheet.values() for c in cells.values()]
+    if not _UNSAFE.search("".join(texts)):
+        return r
+    findings = tuple(replace(f, message=inert(f.message), path=inert(f.path),
+                             suspect=inert(f.suspect) if f.suspect else f.suspect,
+                             quantities=tuple(map(inert, f.quantities)),
+                             candidates=tuple(map(inert, f.candidates))) for f in r.findings)
+    sheet = {inert(col): {q: c._replace(text=inert(c.text)) if c.text else c for q, c in cells.items()}
+             for col, cells in r.sheet.items()}
+    return replace(r, path=inert(r.path), title=inert(r.title) if r.title else r.title, findings=findings,
+                   sheet=sheet, branch_ends=tuple(map(inert, r.branch_ends)),
+                   operating_points=tuple(map(inert, r.operating_points)))
+
+
 @dataclass(frozen=True)
 class OutputOptions:
     units: object = None  # the process's UnitSystem, to show SI numbers in people's units
@@ -31,7 +78,13 @@ class OutputOptions:
 
 
 def writer(name: str):
+    """The chosen format's ``write``, given results whose spec text is inert in every format."""
     try:
-        return importlib.import_module(FORMATS[name]).write
+        write = importlib.import_module(FORMATS[name]).write
     except KeyError:
         raise KeyError(f"unknown format {name!r}; choose one of {', '.join(FORMATS)}") from None
+
+    def safe_write(results, out, options=None) -> None:
+        write(inert_results(results), out, options)
+
+    return safe_write

@@ -13,6 +13,14 @@ _SEVERITY_STYLE = {"error": "bold red", "warning": "yellow", "note": "cyan"}
 _STATUS_STYLE = {"stated": "", "derived": "green", "conflict": "bold red"}
 
 
+class QuietConsole(Console):
+    """rich's console, but a reader that stops early (``| head``) raises ``BrokenPipeError`` to the
+    caller, which decides the exit code, instead of rich's own exit with code 1."""
+
+    def on_broken_pipe(self) -> None:
+        raise BrokenPipeError
+
+
 class _Shower:
     """Formats SI numbers in a unit, or bare (the unit said once per cell)."""
 
@@ -92,7 +100,7 @@ def _grid(console: Console, sheet: dict, show) -> None:
 
 def write(results: list[FileResult], out, options) -> None:
     color = bool(options and options.color)
-    console = Console(file=out, color_system="auto" if color else None, force_terminal=color,
+    console = QuietConsole(file=out, color_system="auto" if color else None, force_terminal=color,
                       no_color=not color, highlight=False, emoji=False,
                       width=(options.width if options and options.width else None) or (None if color else 100))
     show = _Shower(options.units)

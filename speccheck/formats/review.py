@@ -6,9 +6,9 @@ and which headline numbers the sheet implies without stating them.
 
 from __future__ import annotations
 
-from rich.console import Console
 from rich.text import Text
 
+from speccheck.formats.human import QuietConsole
 from speccheck.records.findings import FileResult, SEVERITIES
 from speccheck.physics.quantities import BY_NAME
 from speccheck.reading.units import choose_unit, format_quantity
@@ -26,7 +26,7 @@ def _phrase(quantity: str) -> str:
 
 def write(results: list[FileResult], out, options) -> None:
     color = bool(options and options.color)
-    console = Console(file=out, color_system="auto" if color else None, force_terminal=color,
+    console = QuietConsole(file=out, color_system="auto" if color else None, force_terminal=color,
                       no_color=not color, highlight=False, emoji=False, width=None if color else 100)
     units = options.units
     for result in results:

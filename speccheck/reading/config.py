@@ -35,6 +35,7 @@ from pathlib import Path, PurePosixPath
 from types import MappingProxyType
 from typing import Iterable, Mapping
 
+from speccheck.reading.disk import read_regular
 from speccheck.records.findings import SEVERITIES, FileResult
 from speccheck.records.rules import RULES
 
@@ -42,10 +43,12 @@ CONFIG_FILE = "speccheck.toml"
 PYPROJECT = "pyproject.toml"
 KEYS = ("tolerance", "disable", "severity", "include", "exclude", "fail-on")
 FAIL_LEVELS = SEVERITIES  # "error" | "warning" | "note"
+MAX_CONFIG_BYTES = 1024 * 1024  # a configuration file larger than this is refused
 
-# Findings that say a file was not read at all: turning them off or down would let a file
-# that was never checked pass, so neither the configuration nor a suppression may.
-FIXED_RULES = frozenset({"yaml-syntax", "unreadable-file", "input-limit", "unsupported-yaml-tag"})
+# Findings that say a file was not read or not fully checked: turning them off or down would
+# let a file that was never checked pass, so neither the configuration nor a suppression may.
+FIXED_RULES = frozenset({"yaml-syntax", "unreadable-file", "input-limit", "unsupported-yaml-tag",
+                         "internal-error"})
 # The laser-safety caution is always shown: it may not be disabled, lowered or suppressed.
 ALWAYS_SHOWN = frozenset({"laser-safety"})
 
@@ -76,8 +79,15 @@ DEFAULT = Config()
 
 # ------------------------------------------------------------------ finding the file
 def _has_section(text: str) -> bool:
-    return re.search(r"^\s*\[\s*tool\s*\.\s*speccheck\s*[\].]", text, re.M) is not None or \
-        re.search(r"^\s*tool\s*\.\s*speccheck\s*[.=]", text, re.M) is not None
+    """Whether a pyproject.toml holds a ``tool.speccheck`` table, as TOML reads it (whichever way
+    it is written: ``[tool.speccheck]``, ``[tool]`` with ``speccheck.x = …``, inline tables).  A
+    file TOML cannot read counts when it seems to name the table, so its mistake is reported."""
+    try:
+        tool = tomllib.loads(text).get("tool")
+    except (tomllib.TOMLDecodeError, RecursionError):
+        return re.search(r"^\s*\[\s*tool\s*\.\s*speccheck\s*[\].]", text, re.M) is not None or \
+            re.search(r"^\s*(?:tool\s*\.\s*)?speccheck\s*[.=]", text, re.M) is not None
+    return isinstance(tool, dict) and "speccheck" in tool
 
 
 def find(start: Path) -> Path | None:
@@ -90,7 +100,7 @@ def find(start: Path) -> Path | None:
         pyproject = folder / PYPROJECT
         if pyproject.is_file():
             try:
-                if _has_section(pyproject.read_text("utf-8", errors="replace")):
+                if _has_section(read_regular(pyproject, MAX_CONFIG_BYTES).decode("utf-8", errors="replace")):
                     return pyproject
             except OSError:
                 pass
@@ -109,10 +119,12 @@ def load(path: Path) -> Config:
     """Read and parse one configuration file; every problem is a ``ConfigError``."""
     name = shown(path)
     try:
-        raw = path.read_bytes()
+        raw = read_regular(path, MAX_CONFIG_BYTES)
     except OSError as exc:
         reason = "is a directory" if isinstance(exc, IsADirectoryError) else (exc.strerror or str(exc))
         raise ConfigError(name, f"cannot read the configuration: {reason}") from None
+    if len(raw) > MAX_CONFIG_BYTES:
+        raise ConfigError(name, f"the configuration is larger than {MAX_CONFIG_BYTES} bytes")
     try:
         text = raw.decode("utf-8-sig")
     except UnicodeDecodeError as exc:
@@ -157,6 +169,8 @@ def parse(text: str, path: str = CONFIG_FILE, *, pyproject: bool = False, root: 
         data = tomllib.loads(text)
     except tomllib.TOMLDecodeError as exc:
         raise ConfigError(path, f"not valid TOML: {exc}") from None
+    except RecursionError:  # tomllib recurses into nested arrays and inline tables
+        raise ConfigError(path, "not usable TOML: arrays or tables nested too deeply") from None
     table_name = "tool.speccheck" if pyproject else None
     if pyproject:
         section = data.get("tool", {}).get("speccheck", {}) if isinstance(data.get("tool"), dict) else {}

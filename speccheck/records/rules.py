@@ -49,6 +49,11 @@ _RULES = (
          "a: &a [*b, *b, ...]  (an alias bomb)", "a small spec"),
     Rule("unreadable-file", "error", "a file could not be read",
          "The file does not exist, is not readable, or is a directory given where a file was expected."),
+    Rule("internal-error", "error", "speccheck failed while checking this file",
+         "An unexpected error inside speccheck stopped the check of this file, so its other findings "
+         "are incomplete. The other files of the run are still checked and reported, and the run exits "
+         "with code 2. Please report it with the spec that caused it; the message names the error. It "
+         "cannot be disabled, lowered or suppressed, since the file was not fully checked."),
     # ---- the schema
     Rule("schema-violation", "error", "the document does not follow the spec schema",
          "The spec is validated against the published JSON Schema (schemas/, draft 2020-12); "

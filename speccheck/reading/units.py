@@ -12,108 +12,12 @@ CODATA values here and nowhere else.
 from __future__ import annotations
 
 import math
-import re
-from dataclasses import dataclass
 from functools import lru_cache
 
-
-# Dimension keys speccheck knows, by SI unit, with a human name.
-DIMENSION_NAMES: dict[str, str] = {
-    "m": "length",
-    "s": "time",
-    "Hz": "frequency",
-    "1/m": "wavenumber",
-    "J": "energy",
-    "W": "power",
-    "W/m^2": "intensity",
-    "J/m^2": "fluence",
-    "V/m": "electric field",
-    "1": "dimensionless",
-    "s^2": "group-delay dispersion",
-    "s^3": "third-order dispersion",
-}
-
-MAX_UNIT_LENGTH = 64
-
-# A unit string may contain letters (with µ μ Ω Å °), %, spaces, * / · ^ ( ),
-# and digits only as small exponents or as the "1" of "1/cm".
-_UNIT_CHARS = re.compile(r"^[A-Za-zµμΩÅ°%²³¹⁰⁴⁵⁶⁷⁸⁹⁻ ./*^()·⋅\-0-9]+$")
-_DIGITS = re.compile(r"\d+")
-_EXPONENT_BEFORE = re.compile(r"(\^|\*\*)\s*-?\s*$")
-_SUPERSCRIPTS = str.maketrans({"²": "^2", "³": "^3", "¹": "^1", "·": "*", "⋅": "*", "μ": "µ"})
-_SUPER_MINUS = re.compile(r"⁻\^?(\d)")
-
-
-_CONSTANTS = {"c": "speed_of_light", "h": "planck_constant", "eps0": "vacuum_permittivity",
-              "e": "elementary_charge", "m_e": "electron_mass"}
-MAX_TABLE = 2000  # unit texts remembered on disk
-
-
-def _table_path():
-    """Where the table of pint's answers lives, or None when it is turned off."""
-    import os
-    from pathlib import Path
-
-    if os.environ.get("SPECCHECK_NO_CACHE"):
-        return None
-    try:
-        from importlib.metadata import version
-
-        pint_version = version("pint")
-    except Exception:
-        return None
-    base = os.environ.get("SPECCHECK_CACHE_DIR") or os.path.join(
-        os.environ.get("XDG_CACHE_HOME") or os.path.join(os.path.expanduser("~"), ".cache"), "speccheck")
-    from speccheck._version import __version__
-
-    # keyed by both versions: a new speccheck may describe units differently, a new pint may
-    # carry new CODATA values
-    return Path(base) / f"units-{__version__}-pint{pint_version}.json"
-
-
-class UnitError(ValueError):
-    """A unit string that is not a usable unit; the message says why."""
-
-
-@dataclass(frozen=True)
-class Unit:
-    text: str  # as the user wrote it (normalised for display)
-    factor: float  # multiply a value in this unit by factor to get SI
-    dimension: str | None  # a key of DIMENSION_NAMES, or None if unknown
-    dimensionality: str  # pint's own description, for messages
-
-
-@dataclass(frozen=True)
-class Constants:
-    c: float
-    h: float
-    eps0: float
-    e: float
-    m_e: float
-
-
-def normalise_unit_text(text: str) -> str:
-    text = text.strip()
-    text = text.translate(_SUPERSCRIPTS)  # "cm⁻¹" -> "cm⁻^1"
-    text = _SUPER_MINUS.sub(lambda m: "^-" + m.group(1), text)  # -> "cm^-1"
-    return text.replace("**", "^")
-
-
-def screen_unit_text(text: str) -> None:
-    """Reject unit strings that are not plain unit expressions (before pint sees them)."""
-    if len(text) > MAX_UNIT_LENGTH:
-        raise UnitError(f"unit text is longer than {MAX_UNIT_LENGTH} characters")
-    if not _UNIT_CHARS.match(text):
-        bad = sorted({ch for ch in text if not _UNIT_CHARS.match(ch)})
-        raise UnitError(f"unit contains characters no unit has: {''.join(bad)!r}")
-    for m in _DIGITS.finditer(text):
-        before = text[: m.start()]
-        is_exponent = _EXPONENT_BEFORE.search(before) is not None and len(m.group()) <= 2
-        is_one_over = m.group() == "1" and text[m.end() :].lstrip().startswith("/")
-        if not (is_exponent or is_one_over):
-            raise UnitError(f"unexpected number {m.group()!r} inside the unit")
-        if is_exponent and text[m.end() :].lstrip().startswith("^"):  # W^2^2^2...: pint would compute a tower
-            raise UnitError("an exponent may not itself be raised to a power")
+from speccheck.reading import unit_table
+from speccheck.reading.unit_text import (  # noqa: F401  (re-exported: the unit boundary's names)
+    CONSTANT_NAMES, DIMENSION_NAMES, AngularUnit, Constants, Unit, UnitError, _RADIAN, normalise_unit_text,
+    screen_unit_text)
 
 
 class UnitSystem:
@@ -129,7 +33,7 @@ class UnitSystem:
     def __init__(self, registry=None, cache_folder: str | None = ":auto:", table: bool = True) -> None:
         self._registry = registry
         self._cache_folder = cache_folder
-        self._table_path = _table_path() if table and registry is None else None
+        self._table_path = unit_table.path() if table and registry is None else None
         self._table: dict = {}
         self._constants: dict | None = None
         self._dirty = False
@@ -139,7 +43,7 @@ class UnitSystem:
         if self._constants is None:
             q = self.registry.Quantity
             self._constants = {name: float(q(1, pint_name).to_base_units().magnitude)
-                               for name, pint_name in _CONSTANTS.items()}
+                               for name, pint_name in CONSTANT_NAMES.items()}
             self._dirty = True
         self.constants = Constants(**self._constants)
 
@@ -162,37 +66,19 @@ class UnitSystem:
 
     # ------------------------------------------------------------ the table on disk
     def _load_table(self) -> None:
-        import json
-
-        try:
-            data = json.loads(self._table_path.read_text("utf-8"))
-            constants = {k: float(data["constants"][k]) for k in _CONSTANTS}
-            table = {str(k): Unit(str(v[0]), float(v[1]), v[2] if v[2] is None else str(v[2]), str(v[3]))
-                     for k, v in data["units"].items()}
-        except (OSError, ValueError, KeyError, TypeError, IndexError):
-            return  # no table yet, or a damaged one: pint answers and the table is written anew
-        self._constants, self._table = constants, table
+        """Read the table; every entry is checked, and one that fails is dropped (pint answers
+        it again).  Constants that are not the SI's are a damaged table: it is not used."""
+        loaded = unit_table.load(self._table_path)
+        if loaded is not None:
+            self._constants, self._table, damaged = loaded
+            self._dirty = damaged  # write the table back without the bad entries
 
     def save(self) -> None:
-        """Write what pint answered this run to the table (atomically; failures are ignored)."""
-        if not self._dirty or self._table_path is None:
-            return
-        import json
-        import os
-        import tempfile
-
-        data = {"constants": self._constants,
-                "units": {k: [u.text, u.factor, u.dimension, u.dimensionality]
-                          for k, u in sorted(self._table.items())[:MAX_TABLE]}}
-        try:
-            self._table_path.parent.mkdir(parents=True, exist_ok=True)
-            fd, tmp = tempfile.mkstemp(dir=self._table_path.parent, prefix=".units.")
-            with os.fdopen(fd, "w", encoding="utf-8") as out:
-                json.dump(data, out, ensure_ascii=False)
-            os.replace(tmp, self._table_path)
+        """Write what pint answered this run to the table, merged with what another run wrote
+        meanwhile (atomically, under a lock where the platform has one; failures are ignored)."""
+        if self._dirty and self._table_path is not None and unit_table.save(
+                self._table_path, self._constants, self._table):
             self._dirty = False
-        except OSError:
-            pass
 
     def _dimensionality(self, text: str):
         if text == "1":
@@ -204,10 +90,15 @@ class UnitSystem:
         shown = normalise_unit_text(text)
         if shown in ("%", "percent"):
             return Unit("%", 0.01, "1", "dimensionless")
+        screen_unit_text(shown)  # before the table, so a damaged table cannot let a unit through
         known = self._table.get(shown)
-        if known is not None:
-            return known
-        screen_unit_text(shown)
+        if known is None:
+            known = self._from_pint(shown)
+        if known.dimension in ("Hz", "1/m") and _RADIAN.search(shown):
+            raise AngularUnit(shown, known.factor, known.dimension)
+        return known
+
+    def _from_pint(self, shown: str) -> Unit:
         try:
             units = self.registry.parse_units(shown.replace("^", "**"))
             quantity = self.registry.Quantity(1.0, units).to_base_units()
@@ -220,7 +111,7 @@ class UnitSystem:
         dimension = self._dimensions.get(dims)
         described = str(quantity.dimensionality) or "dimensionless"
         unit = Unit(shown, factor, dimension, described)
-        if len(self._table) < MAX_TABLE:
+        if len(self._table) < unit_table.MAX_TABLE:
             self._table[shown] = unit
             self._dirty = True
         return unit
@@ -237,7 +128,7 @@ def _pint_reason(text: str, exc: Exception) -> str:
         return f"{text!r} is not a unit expression"
     if isinstance(exc, OverflowError):
         return f"unit {text!r} overflows when converted to SI"
-    return f"{text!r} is not a usable unit ({name})"
+    return f"{text!r} is not a usable unit"
 
 
 # ---------------------------------------------------------------- formatting

@@ -20,10 +20,13 @@ import re
 from dataclasses import dataclass
 
 from speccheck.physics.quantities import ALIASES, BY_NAME
-from speccheck.reading.units import DIMENSION_NAMES, UnitError, UnitSystem
+from speccheck.reading.units import DIMENSION_NAMES, AngularUnit, UnitError, UnitSystem
 
-_NUMBER = r"[+-]?(?:\d+(?:\.\d*)?|\.\d+)(?:[eE][+-]?\d+)?"
-_TIMES_TEN = r"(?:\s*[x×*]\s*10\s*(?:\^|\*\*)\s*([+-]?\d{1,4}))?"
+# ASCII digits only: Python's \d (and float()) would also read ١٥ or １５ as 15
+_NUMBER = r"[+-]?(?:[0-9]+(?:\.[0-9]*)?|\.[0-9]+)(?:[eE][+-]?[0-9]+)?"
+_TIMES_TEN = r"(?:\s*[x×*]\s*10\s*(?:\^|\*\*)\s*([+-]?[0-9]{1,4}))?"
+# Logarithmic units converted as logarithms: value = reference × 10^(x/10)
+_LOG_UNITS = {"dBm": (1e-3, "W"), "dBmW": (1e-3, "W"), "dBW": (1.0, "W"), "dB": (1.0, "1")}
 _VALUE = re.compile(rf"^\s*({_NUMBER}){_TIMES_TEN}\s*(.*?)\s*$")
 _PLUS_MINUS = re.compile(r"\s*(?:±|\+/-|\+-)\s*")
 _BOUND = re.compile(r"^\s*(>=|<=|≥|≤|=>|=<|>|<)\s*(.*)$")
@@ -97,6 +100,10 @@ class ValueParser:
         text = str(raw)
         if len(text) > MAX_VALUE_LENGTH:
             raise ValueProblem("invalid-value", f"{key}: value is longer than {MAX_VALUE_LENGTH} characters")
+        digits = sorted({ch for ch in text if not ch.isascii() and ch.isdecimal()})  # not ² ³: those are units'
+        if digits:
+            raise ValueProblem("invalid-value", f"{key}: {text.strip()!r} has digits that are not 0-9 "
+                               f"({''.join(digits)!r}); write the number with ASCII digits")
         return self._parse_text(key, text.translate(_SPACES), tolerance)
 
     # --------------------------------------------------------------- helpers
@@ -186,7 +193,14 @@ class ValueParser:
             )
         number = float(match.group(1))
         if match.group(2) is not None:
-            number *= 10.0 ** int(match.group(2)) if abs(int(match.group(2))) < 400 else math.inf
+            mantissa = number
+            try:
+                number *= 10.0 ** int(match.group(2))
+            except OverflowError:  # 10^350 is beyond a float
+                number = math.inf
+            if number == 0.0 and mantissa != 0.0:  # 10^-350 underflows to zero
+                raise ValueProblem("invalid-value", f"{key}: {text.strip()!r} is outside the range speccheck "
+                                   f"handles ({SI_RANGE[0]:g} to {SI_RANGE[1]:g} in SI units)")
         if math.isnan(number) or math.isinf(number):
             raise ValueProblem("non-finite-value", f"{key}: {text.strip()!r} is not a finite number")
         return number, match.group(3)
@@ -208,8 +222,16 @@ class ValueParser:
                 f"{key}: {text.strip()!r} has no unit; expected {_article(expected)} {expected} such as "
                 f"'{_example(names)}'",
             )
+        if unit.strip() in _LOG_UNITS and (log := self._logarithmic(key, number, unit.strip(), names, text)):
+            return log
         try:
             parsed = self.units.parse(unit)
+        except AngularUnit as exc:
+            what = "frequency" if exc.dimension == "Hz" else "wavenumber"
+            as_f = number * exc.factor / (2.0 * math.pi)
+            unit_f = "Hz" if exc.dimension == "Hz" else "1/m"
+            raise ValueProblem("unknown-unit", f"{key}: {text.strip()!r} is an angular {what} (rad); speccheck "
+                               f"reads a {what} as cycles, f = ω/2π: write '{as_f:.4g} {unit_f}'") from None
         except UnitError as exc:
             raise ValueProblem("unknown-unit", f"{key}: {exc}") from None
         if parsed.dimension not in names:
@@ -226,6 +248,22 @@ class ValueParser:
             raise ValueProblem("invalid-value", f"{key}: {text.strip()!r} is outside the range speccheck "
                                f"handles ({SI_RANGE[0]:g} to {SI_RANGE[1]:g} in SI units)")
         return names[parsed.dimension], si, parsed.text
+
+
+    def _logarithmic(self, key, number: float, unit: str, names: dict, text: str):
+        """A value in dB, dBm or dBW, converted as a logarithm (30 dBm = 1 W; a 30 dB gain = ×1000)."""
+        ref, dimension = _LOG_UNITS[unit]
+        if dimension not in names:
+            expected = " or ".join(DIMENSION_NAMES[d] for d in names)
+            what = "a ratio (a power in dB needs its reference: dBm for 1 mW, dBW for 1 W)" if dimension == "1" \
+                else "a power"
+            raise ValueProblem("wrong-dimension", f"{key}: {text.strip()!r} is {what}, expected "
+                               f"{_article(expected)} {expected} (e.g. '{_example(names)}')")
+        exponent = number / 10.0
+        if not -100.0 <= exponent <= 100.0:
+            raise ValueProblem("invalid-value", f"{key}: {text.strip()!r} is outside the range speccheck handles")
+        si = ref * 10.0 ** exponent
+        return names[dimension], si, "W" if dimension == "W" else "1"
 
 
 _EXAMPLES = {"m": "800 nm", "s": "150 fs", "Hz": "80 MHz", "1/m": "100 cm^-1", "J": "25 nJ",

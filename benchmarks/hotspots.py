@@ -284,7 +284,7 @@ def validator(python: str, folder: Path, tmp: Path) -> None:
     print(f"3. Schema validation of {n} parsed documents (best kept per call; averages of 5 rounds)")
     for key, label in (("iter_errors", "jsonschema iter_errors (what the reference runs)"),
                        ("is_valid", "jsonschema is_valid"),
-                       ("compiled", "speccheck.fastschema: the schema compiled to plain Python checks")):
+                       ("compiled", "speccheck.reading.fastschema: the schema compiled to plain Python checks")):
         print(f"   {d[key] * 1000:8.1f} ms {d[key] / n * 1e6:8.1f} µs/doc  {label}")
     print(f"   compiled check vs jsonschema: {d['disagree']} disagreements over {d['checked']} documents "
           f"({d['spoilt_invalid']}/{d['spoilt']} spoilt copies rejected); compile {d['compile'] * 1000:.2f} ms, "

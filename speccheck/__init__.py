@@ -10,7 +10,8 @@ this list (``tests/test_layers.py`` enforces it):
   boundary, the project configuration, suppressions, measured-data files;
 * ``checking`` – the generic engine, the column check, the path walk, the document checker;
 * ``formats``  – the output formats;
-* this package's top modules – the command line (``cli``) and the starter specs.
+* this package's top modules – the command line (``cli``), the file system (``files``) and the
+  starter specs (``starter``).
 """
 
 from speccheck._version import __version__

@@ -227,6 +227,15 @@ def _explain(rule_id: str, stdout, stderr) -> int:
         source = r.source or source_of(r.explanation)
         if source:
             stdout.write(f"\nSource: {source}\n")
+    if r.id == "stage-parameter":
+        from speccheck.physics.stages import STAGE_KINDS
+
+        stdout.write("\nStage kinds and their parameters (* required):\n")
+        for kind in STAGE_KINDS.values():
+            params = ", ".join(p.name + ("*" if p.required else "") for p in kind.params)
+            extra = f"; at least one of {', '.join(kind.one_of)}" if kind.one_of else ""
+            extra += "; two named branches" if kind.splits else ""
+            stdout.write(f"  {kind.name:<14} {params}{extra}\n  {'':<14} {kind.summary}\n")
     if r.failing:
         stdout.write("\nFails:\n" + "".join(f"  {line}\n" for line in r.failing.splitlines()))
     if r.passing:

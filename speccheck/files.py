@@ -1,6 +1,7 @@
 """Files on disk for the command line: finding spec files (folders, globs), reading the data
-files a spec names beside it, and writing a report atomically.  Only this module and the
-command line touch the file system; the checker gets text and an injected reader."""
+files a spec names beside it, and writing a report atomically.  Besides this module only the
+configuration (``reading/config.py``) and the unit table (``reading/unit_table.py``) touch the
+file system; the checking layer gets text and an injected reader."""
 
 from __future__ import annotations
 

@@ -1,4 +1,4 @@
-"""Tests for speccheck.dispersion: Gaussian broadening and chirped pulses."""
+"""Tests for speccheck.physics.dispersion: Gaussian broadening and chirped pulses."""
 
 from __future__ import annotations
 

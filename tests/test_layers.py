@@ -49,8 +49,17 @@ def imports_of(path: Path) -> set[str]:
     return found
 
 
+def string_imports_of(path: Path) -> set[str]:
+    """Module names in strings (``importlib.import_module("speccheck.…")``, ``__import__``)."""
+    tree = ast.parse(path.read_text(encoding="utf-8"))
+    return {n.value for n in ast.walk(tree) if isinstance(n, ast.Constant) and isinstance(n.value, str)
+            and n.value.startswith("speccheck.") and " " not in n.value
+            and ((PACKAGE.parent / (n.value.replace(".", "/") + ".py")).exists()
+                 or (PACKAGE.parent / n.value.replace(".", "/")).is_dir())}
+
+
 def graph() -> dict[str, set[str]]:
-    return {module_name(p): imports_of(p) for p in sorted(PACKAGE.rglob("*.py"))}
+    return {module_name(p): imports_of(p) | string_imports_of(p) for p in sorted(PACKAGE.rglob("*.py"))}
 
 
 def test_no_import_runs_up_a_layer():
@@ -91,9 +100,12 @@ def test_the_walk_finds_imports_inside_functions_and_type_checking(tmp_path):
     # the checker of this test must see every kind of import, or it cannot fail
     probe = PACKAGE / "physics" / "_probe_for_test.py"
     probe.write_text("from typing import TYPE_CHECKING\nif TYPE_CHECKING:\n    from speccheck.checking import engine\n"
-                     "def f():\n    from ..formats import human\n", encoding="utf-8")
+                     "def f():\n    from ..formats import human\n"
+                     "def g():\n    import importlib\n    return importlib.import_module('speccheck.checking.walker')\n",
+                     encoding="utf-8")
     try:
         assert imports_of(probe) >= {"speccheck.checking.engine", "speccheck.formats.human"}
+        assert string_imports_of(probe) == {"speccheck.checking.walker"}
     finally:
         probe.unlink()
 
@@ -117,14 +129,23 @@ def test_the_walk_never_branches_on_a_stage_kind_name():
     # a kind's behaviour is declared in its row of STAGE_KINDS; the walk treats every kind alike
     from speccheck.physics.stages import STAGE_KINDS
 
-    for module in ("walker", "targets"):  # stage_checks holds the kinds' own code, which may name their parameters
-        tree = ast.parse((PACKAGE / "checking" / f"{module}.py").read_text(encoding="utf-8"))
+    # stage_checks holds the kinds' own code, which may name their parameters; nothing else may
+    for path in sorted((PACKAGE / "checking").glob("*.py")):
+        if path.stem == "stage_checks":
+            continue
+        module = path.stem
+        tree = ast.parse(path.read_text(encoding="utf-8"))
         docstrings = {id(n.body[0].value) for n in ast.walk(tree)
                       if isinstance(n, (ast.Module, ast.FunctionDef, ast.ClassDef)) and n.body
                       and isinstance(n.body[0], ast.Expr) and isinstance(n.body[0].value, ast.Constant)}
+        params = {p.name for k in STAGE_KINDS.values() for p in k.params} - {"name"}
         names = [n.value for n in ast.walk(tree) if isinstance(n, ast.Constant) and id(n) not in docstrings
                  and isinstance(n.value, str) and n.value in STAGE_KINDS]
         assert not names, f"checking/{module}.py names stage kinds: {names}"
+        if module in ("walker", "targets"):  # nor the parameters of one kind
+            named = [n.value for n in ast.walk(tree) if isinstance(n, ast.Constant) and id(n) not in docstrings
+                     and isinstance(n.value, str) and n.value in params]
+            assert not named, f"checking/{module}.py names stage parameters: {named}"
 
 
 def test_every_check_a_stage_kind_names_exists():
@@ -133,3 +154,40 @@ def test_every_check_a_stage_kind_names_exists():
 
     named = {c for kind in STAGE_KINDS.values() for c in kind.checks}
     assert named and named <= set(CHECKS)
+
+
+def test_every_stage_check_declares_the_rules_it_reports():
+    import inspect
+    import re
+
+    from speccheck.checking.stage_checks import CHECKS
+
+    for check in CHECKS.values():
+        reported = set(re.findall(r'report\.add\(\s*"([a-z0-9-]+)"', inspect.getsource(check.run)))
+        reported |= set(re.findall(r'"([a-z0-9-]+)" if ', inspect.getsource(check.run)))
+        assert reported and reported <= set(check.rules), (check.id, reported - set(check.rules))
+
+
+def test_the_schema_names_every_stage_kind_and_parameter_and_nothing_else():
+    import json
+
+    from speccheck.checking.stage_checks import CHECKS
+    from speccheck.physics.stages import STAGE_KINDS
+
+    stage = json.loads((PACKAGE.parent / "schemas" / "spec-v1.schema.json").read_text("utf-8"))["$defs"]["stage"]
+    assert set(stage["properties"]["kind"]["enum"]) == set(STAGE_KINDS)
+    keys = {"name", "kind", "measured", "branches"} | {p.name for k in STAGE_KINDS.values() for p in k.params} | {
+        key for c in CHECKS.values() for key in c.keys}
+    assert set(stage["properties"]) == keys
+
+
+def test_the_schema_is_found_in_a_source_tree_that_is_not_installed(monkeypatch):
+    from importlib import resources
+
+    from speccheck.reading import schema
+
+    def missing(name):
+        raise ModuleNotFoundError(name)
+
+    monkeypatch.setattr(resources, "files", missing)
+    assert '"$schema"' in schema.schema_text()

@@ -1,4 +1,4 @@
-"""Tests for speccheck.materials: published index values, derivatives, lookup."""
+"""Tests for speccheck.physics.materials: published index values, derivatives, lookup."""
 
 from __future__ import annotations
 

@@ -129,7 +129,7 @@ def test_the_same_spec_as_a_gaussian_is_below_its_transform_limit(check):
 def test_a_lorentzian_pulse_with_a_bandwidth_goes_through_a_path(check):
     # The path takes the transform-limited duration from the bandwidth and the shape's limit;
     # without a limit it takes the stated duration as transform-limited, and GDD broadens it
-    # (Gaussian broadening model of path.py: τ = τ0 √(1 + (4 ln2 φ/τ0²)²)).
+    # (Gaussian broadening model of physics/stages.py: τ = τ0 √(1 + (4 ln2 φ/τ0²)²)).
     result = check("""
         laser: {wavelength: 800 nm, spectral_bandwidth: 10 THz, pulse_duration: 30 fs,
                 pulse_shape: lorentzian, pulse_energy: 1 nJ}

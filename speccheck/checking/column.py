@@ -3,7 +3,7 @@
 ``BlockCheck`` parses the column's values (and measured data files), runs the
 engine over the relation table, turns a contradiction into findings that name
 the suspect and the likely mistake, builds the sheet's cells, and checks the
-limits of single quantities.  It reports through the document's ``_Report``
+limits of single quantities.  It reports through the document's ``report.Report``
 (which stamps locations); it does no I/O (data files come through the
 checker's injected reader).
 """
@@ -53,8 +53,10 @@ class BlockCheck:
         return f"{self.name}.{quantity}"
 
     def at(self, quantity: str) -> tuple:
+        """Where a quantity of this column was written; a derived or carried one is placed at the
+        column itself (a stage's line), never at a path the document does not have."""
         key = self.keys.get(quantity, quantity)
-        return self.paths.get(key, (self.name, key))
+        return self.paths.get(key) or self.paths.get("", (self.name, key))
 
     def show(self, quantity: str, si: float, unit: str | None = None) -> str:
         return format_quantity(self.c.units, si, unit or self.unit_for(quantity, si))

@@ -22,6 +22,7 @@ from speccheck.physics import hazards, materials
 from speccheck.physics.stages import STAGE_KINDS, Beam, StageKind, typical
 from speccheck.reading.values import ValueProblem
 from speccheck.records.findings import Cell
+from speccheck.records.rules import RULES
 
 
 @dataclass
@@ -53,6 +54,8 @@ class StageCheck:
     phase: str  # "incident" or "column"
     run: Callable  # (walk, visit) -> None
     summary: str
+    rules: tuple[str, ...] = ()  # the rule ids it reports (each must be in the rule catalogue)
+    keys: tuple[str, ...] = ()  # stage keys it reads besides the kind's parameters
 
 
 def photon_energy(walk, v: Visit) -> None:
@@ -224,11 +227,17 @@ def optic_damage(walk, v: Visit) -> None:
 
 
 CHECKS: dict[str, StageCheck] = {c.id: c for c in (
-    StageCheck("photon-energy", "incident", photon_energy, "1/λp = 1/λs + 1/λi for a parametric stage"),
-    StageCheck("measured-spot", "incident", measured_spot, "a measured spot against the diffraction limit"),
-    StageCheck("focus-spot", "column", focus_spot, "Rayleigh range and the paraxial limit of a focus"),
-    StageCheck("self-focusing", "column", self_focusing, "critical power, collapse distance and B-integral"),
-    StageCheck("optic-damage", "column", optic_damage, "peak fluence against a stated damage threshold"),
+    StageCheck("photon-energy", "incident", photon_energy, "1/λp = 1/λs + 1/λi for a parametric stage",
+               ("photon-energy-not-conserved",)),
+    StageCheck("measured-spot", "incident", measured_spot, "a measured spot against the diffraction limit",
+               ("spot-below-diffraction-limit",)),
+    StageCheck("focus-spot", "column", focus_spot, "Rayleigh range and the paraxial limit of a focus",
+               ("non-paraxial-focus",)),
+    StageCheck("self-focusing", "column", self_focusing, "critical power, collapse distance and B-integral",
+               ("self-focusing", "self-focusing-air", "self-focusing-risk", "b-integral")),
+    StageCheck("optic-damage", "column", optic_damage, "peak fluence against a stated damage threshold",
+               ("optic-damage", "optic-damage-margin", "damage-rating-not-transferable", "target-unknown"),
+               keys=("damage_threshold",)),
 )}
 
 EVERY_STAGE = ("optic-damage",)  # checks of every stage, whatever its kind
@@ -237,6 +246,9 @@ _unknown = sorted({c for k in STAGE_KINDS.values() for c in k.checks} - set(CHEC
     sorted(set(EVERY_STAGE) - set(CHECKS))
 if _unknown:
     raise ValueError(f"stage kinds name checks that do not exist: {', '.join(_unknown)}")
+_unknown = sorted({r for c in CHECKS.values() for r in c.rules} - set(RULES))
+if _unknown:
+    raise ValueError(f"stage checks name rules that are not in the catalogue: {', '.join(_unknown)}")
 
 
 def checks_of(kind: StageKind, phase: str) -> list[StageCheck]:

@@ -13,14 +13,16 @@ from speccheck.reading.values import Stated, ValueProblem
 from speccheck.records.findings import Cell
 
 
-def finish(walk, columns: list, beam: Beam, target, target_at: tuple) -> None:
+def finish(walk, columns: list, beam: Beam, target, target_at: tuple, end_at: tuple = ()) -> None:
     """Targets are compared with the last column of their branch."""
     last = columns[-1]
     if last != "laser":
         walk.ends.append(last)
     cells = walk.sheet.get(last, {})
-    compensation(walk, last, beam, target_at)
-    strong_field(walk, last, target, target_at)
+    # what the branch's end is told is placed at its target, or without one at its last stage
+    at = target_at if isinstance(target, dict) and target else end_at or target_at
+    compensation(walk, last, beam, at)
+    strong_field(walk, last, target, at)
     if not isinstance(target, dict):
         return
     for key, raw in target.items():

@@ -18,7 +18,7 @@ from dataclasses import replace
 
 from speccheck.checking import targets, wording
 from speccheck.checking.column import BlockCheck
-from speccheck.checking.stage_checks import Visit, checks_of, interval
+from speccheck.checking.stage_checks import CHECKS, Visit, checks_of, interval
 from speccheck.physics import hazards, materials
 from speccheck.physics.quantities import BY_NAME
 from speccheck.physics.shapes import DEFAULT_SHAPE, PULSE_SHAPES
@@ -27,8 +27,9 @@ from speccheck.reading.units import choose_unit, format_quantity
 from speccheck.reading.values import Stated, ValueProblem
 from speccheck.records.findings import Cell
 
-_STAGE_KEYS = {"name", "kind", "measured", "branches", "damage_threshold"} | {
-    p.name for k in STAGE_KINDS.values() for p in k.params}
+_FIXED_KEYS = {"name", "kind", "measured"}  # keys every stage may have
+_STAGE_KEYS = _FIXED_KEYS | {"branches"} | {p.name for k in STAGE_KINDS.values() for p in k.params} | {
+    key for c in CHECKS.values() for key in c.keys}
 
 
 def beam_from(cells: dict, old: Beam | None, shape_limit: float | None) -> Beam:
@@ -85,8 +86,8 @@ class PathWalk:
     def params(self, stage: dict, kind, at: tuple, name: str) -> dict | None:
         out: dict = {}
         ok = True
-        allowed = {p.name for p in kind.params} | {"name", "kind", "measured", "damage_threshold"} | (
-            {"branches"} if kind.splits else set())
+        allowed = {p.name for p in kind.params} | _FIXED_KEYS | ({"branches"} if kind.splits else set()) | {
+            key for c in checks_of(kind, "incident") + checks_of(kind, "column") for key in c.keys}
         for key in stage:
             if key in _STAGE_KEYS and key not in allowed:
                 takes = ", ".join(p.name for p in kind.params)
@@ -183,8 +184,10 @@ class PathWalk:
     def walk(self, stages, at: tuple, beam: Beam, columns: list, target, target_at: tuple) -> None:
         if not isinstance(stages, list):
             stages = []
+        end_at = at  # the place of the branch's last stage, for what is said about its end
         for i, stage in enumerate(stages):
             here = at + (i,)
+            end_at = here
             if not isinstance(stage, dict):
                 continue
             kind = STAGE_KINDS.get(stage.get("kind"))
@@ -217,23 +220,23 @@ class PathWalk:
             if "b_integral_total" not in cells:  # a stage without a nonlinear phase of its own
                 self.carry_b(columns)
             if kind.splits:
-                self.split(name, stage, params, beam, here, columns)
+                self.split(name, kind, stage, params, beam, here, columns)
                 if isinstance(target, dict) and target:
                     self.report.add("target-unknown",
                                     f"the path splits at {name!r}, so this target has no single end; give each "
                                     "branch its own target under branches: {…: {target: …}}", target_at,
                                     key=True)
                 return
-        targets.finish(self, columns, beam, target, target_at)
+        targets.finish(self, columns, beam, target, target_at, end_at)
 
-    def split(self, name: str, stage: dict, params: dict, beam: Beam, at: tuple, columns: list) -> None:
+    def split(self, name: str, kind, stage: dict, params: dict, beam: Beam, at: tuple, columns: list) -> None:
+        """The two branches of a stage that splits the beam, each walked as a path of its own."""
         branches = stage.get("branches")
         if not isinstance(branches, dict) or len(branches) != 2:
-            self.report.add("stage-parameter", f"{name}: a splitter needs exactly two named branches",
+            self.report.add("stage-parameter", f"{name}: a {kind.name} stage needs exactly two named branches",
                             at, key=True)
             return
-        ratio = params["ratio"]
-        shares = [ratio, (1.0 - ratio[2], 1.0 - ratio[1], 1.0 - ratio[0])]
+        shares = list(kind.shares(params))
         stated = []
         for k, (branch, spec) in enumerate(branches.items()):
             spec = spec if isinstance(spec, dict) else {}

@@ -18,11 +18,8 @@ when a report is written (``formats/plots.py``).  Without it the page is
 written all the same and says how to get the plots.
 
 What the sheet does not hold — the laser block's ``pulse_shape`` and which
-column ends each branch of a splitter — is read from the spec file itself when
-it can be (a regular file at the path of the result, read with the checker's
-own loader and limits); otherwise the shape is recognised from the sheet's
-autocorrelation or peak-power factor and the last column stands for the end
-of the path.
+column ends each branch of a splitter — comes with the ``FileResult``
+(``pulse_shape``, ``branch_ends``); the page never reads the spec again.
 """
 
 from __future__ import annotations

@@ -77,10 +77,10 @@ ALIASES: dict[str, dict[str, str]] = {
     },
 }
 
-# Categorical keys of a block and the values each accepts (see shapes.py).
+# Categorical keys of a block and the values each accepts (the pulse-shape and beam-profile tables of physics/shapes.py).
 CATEGORICAL = ("pulse_shape", "beam_profile")
 
-# Keys that point to a measured data file next to the spec (see measured.py):
+# Keys that point to a measured data file next to the spec (reading/measured.py reads them):
 # key -> (the axis-unit key, the unit's dimension key in units.DIMENSION_NAMES).
 MEASURED = {"spectrum": ("wavelength_unit", "m"), "autocorrelation": ("delay_unit", "s")}
 

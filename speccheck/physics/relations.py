@@ -7,7 +7,7 @@ Each relation is a product of powers of quantities equal to a constant,
 which is linear in log space (Σ e_i ln q_i = ln K).  Every check, derived cell
 and explanation in speccheck comes from these rows; adding a law is adding a
 row here (and a test).  Physical constants come from pint's CODATA values
-through ``Context``; shape factors from ``shapes.py``.
+through ``Context``; shape factors from ``physics/shapes.py``.
 """
 
 from __future__ import annotations
@@ -113,7 +113,7 @@ RELATIONS: tuple[Relation, ...] = (
         "P_pk = a · E_p / τ  (a = 0.94 Gaussian, 0.88 sech², 2/π Lorentzian, 1 flat top)",
         (("peak_power", 1), ("pulse_energy", -1), ("pulse_duration", 1)),
         lambda x: x.shape.peak_power_factor,
-        "integral of the pulse's intensity profile (see shapes.py)",
+        "integral of the pulse's intensity profile (the pulse-shape table)",
         uses=("pulse_shape",),
     ),
     Relation(
@@ -142,7 +142,7 @@ RELATIONS: tuple[Relation, ...] = (
         "τ_ac = k · τ  (k = √2 Gaussian, 1.543 sech², 2 Lorentzian, 1 flat top)",
         (("autocorrelation_width", 1), ("pulse_duration", -1)),
         lambda x: x.shape.autocorrelation_factor,
-        "intensity autocorrelation of the pulse shape (see shapes.py)",
+        "intensity autocorrelation of the pulse shape (the pulse-shape table)",
         uses=("pulse_shape",),
     ),
     Relation(
@@ -196,7 +196,7 @@ RELATIONS: tuple[Relation, ...] = (
         "τ/τ_TL = τ / τ_TL",
         (("transform_limit_ratio", 1), ("pulse_duration", -1), ("transform_limited_duration", 1)),
         _one,
-        "definition (τ_TL from a measured spectrum, see measured.py)",
+        "definition (τ_TL from a measured spectrum)",
     ),
 )
 

@@ -10,8 +10,8 @@ table, so a stage only says what it changes.
 
 Pulse duration after dispersion uses the Gaussian closed form
 τ = τ_TL √(1 + (4 ln2 φ / τ_TL²)²) with the accumulated GDD φ (see
-``dispersion.py``); for other pulse shapes it is an approximation, and the
-finding says so.  Third-order dispersion (a stage's ``tod``, and the TOD of
+``dispersion.py``); for other pulse shapes it is an approximation (the README
+says so; no finding does).  Third-order dispersion (a stage's ``tod``, and the TOD of
 each material from its Sellmeier equation) is accumulated and reported as
 ``net_tod``, but not folded into the duration.  A laser pulse longer than its transform limit is taken to
 carry positive chirp (common practice: normal dispersion in the source).
@@ -126,7 +126,13 @@ class StageKind:
     # The kind's own checks, by id (their code is in checking.stage_checks, which has a
     # registry of them and fails loudly on an unknown id): physics does not make findings.
     checks: tuple[str, ...] = ()
-    splits: bool = False  # the stage ends its path and starts two named ``branches``
+    # A kind that ends its path and starts two named ``branches``: the shares of the beam the
+    # two branches take, (low, typical, high) each, from the stage's parameters.
+    shares: Callable | None = None
+
+    @property
+    def splits(self) -> bool:
+        return self.shares is not None
 
     def param(self, name: str) -> Param | None:
         return next((p for p in self.params if p.name == name), None)
@@ -275,7 +281,12 @@ def _focus(beam, p, ctx):
 
 
 def _splitter(beam, p, ctx):
-    return beam  # the branches take their shares (checking.walker splits the path)
+    return beam  # the branches take their shares (``_splitter_shares``; checking.walker walks them)
+
+
+def _splitter_shares(p) -> tuple[Value, Value]:
+    ratio = p["ratio"]
+    return ratio, (1.0 - ratio[2], 1.0 - ratio[1], 1.0 - ratio[0])
 
 
 STAGE_KINDS: dict[str, StageKind] = {k.name: k for k in (
@@ -310,7 +321,7 @@ STAGE_KINDS: dict[str, StageKind] = {k.name: k for k in (
     StageKind("beam_expander", (Param("magnification", "1", required=True),), _telescope,
               "beam diameter × magnification"),
     StageKind("splitter", (Param("ratio", "1", required=True, fraction=True),), _splitter,
-              "divides the beam into two named branches (pump–probe)", splits=True),
+              "divides the beam into two named branches (pump–probe)", shares=_splitter_shares),
     StageKind("focus", (Param("focal_length", "m", required=True),), _focus,
               "focusing optic: 1/e² spot diameter 4 M² λ f / (π D)",
               "Gaussian-beam optics (paraxial)", checks=("measured-spot", "focus-spot")),

@@ -23,7 +23,7 @@ def schema_text() -> str:
     try:
         return resources.files("speccheck.schemas").joinpath(SCHEMA_FILE).read_text("utf-8")
     except ModuleNotFoundError:  # running from a source tree that is not installed
-        return (Path(__file__).resolve().parent.parent / "schemas" / SCHEMA_FILE).read_text("utf-8")
+        return (Path(__file__).resolve().parents[2] / "schemas" / SCHEMA_FILE).read_text("utf-8")
 
 
 @lru_cache(maxsize=1)

@@ -112,7 +112,7 @@ _RULES = (
          "a transmission or efficiency is at most 100%.",
          "- {name: lens, kind: focus}", "- {name: lens, kind: focus, focal_length: 150 mm}"),
     Rule("unknown-material", "error", "a material stage names a glass speccheck has no data for",
-         "Materials come from the material table (materials.py) with published Sellmeier coefficients.",
+         "Materials come from the material table (physics/material_data.py) with published Sellmeier coefficients.",
          "material: quartz_glass", "material: fused_silica"),
     Rule("stage-model", "note", "an approximation a stage's physics makes",
          "Harmonic and parametric stages use first estimates (common practice): a harmonic of a Gaussian "

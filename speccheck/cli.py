@@ -20,7 +20,7 @@ from pathlib import Path
 from speccheck._version import __version__
 from speccheck import files
 from speccheck.records.findings import FileResult
-from speccheck.reading.loader import Limits
+from speccheck.reading.loader import MAX_DEPTH, Limits
 
 def _parser() -> argparse.ArgumentParser:
     p = argparse.ArgumentParser(prog="speccheck", description="Check ultrafast laser experiment specs: "
@@ -114,7 +114,7 @@ def _check(args, stdout, stderr, stdin=None) -> int:
     from speccheck.reading import config as cfg
     from speccheck.reading import suppress
     from speccheck.checking.document import DEFAULT_TOLERANCE, Checker, Options
-    from speccheck.formats import MACHINE_FORMATS, OutputOptions, writer
+    from speccheck.formats import OutputOptions, writer
     from speccheck.reading.units import UnitSystem
 
     config = _config(args, stderr)
@@ -138,6 +138,8 @@ def _check(args, stdout, stderr, stdin=None) -> int:
             return 2
     units = UnitSystem()
     tolerance = config.tolerance if config.tolerance is not None else DEFAULT_TOLERANCE
+    if args.max_depth > MAX_DEPTH:
+        stderr.write(f"speccheck: --max-depth {args.max_depth} is more than speccheck can read; using {MAX_DEPTH}\n")
     limits = Limits(max_bytes=args.max_file_size, max_nodes=args.max_nodes, max_depth=args.max_depth)
     reader = files.DataReader()
     checker = Checker(units, Options(limits=limits, default_tolerance=tolerance), read=reader)
@@ -180,7 +182,7 @@ def _check(args, stdout, stderr, stdin=None) -> int:
         except OSError as exc:
             stderr.write(f"speccheck: cannot write {args.output}: {files.reason(exc)}\n")
             return 2
-    elif not files.write_stdout(stdout, stderr, lambda out: write(results, out, options), chosen in MACHINE_FORMATS):
+    elif not files.write_stdout(stdout, stderr, lambda out: write(results, out, options), chosen):
         return 2
     units.save()  # remember pint's answers for the next run
     return code

@@ -14,7 +14,8 @@ import stat
 import sys
 from pathlib import Path
 
-from speccheck.formats import inert
+from speccheck.formats import MACHINE_FORMATS, inert
+from speccheck.reading.config import compile_pattern
 from speccheck.reading.disk import kind_of, read_regular
 from speccheck.records.findings import FileResult, Finding
 
@@ -47,6 +48,36 @@ def walk(folder: Path, selector) -> list[Path]:
     return sorted(found)
 
 
+def recursive_glob(pattern: str) -> list[str]:
+    """What ``glob.glob(pattern, recursive=True)`` finds, but following each real folder once: a
+    symbolic link back up the tree neither loops nor repeats a file (the standard glob follows
+    links into folders without end)."""
+    parts = pattern.replace(os.sep, "/").split("/")
+    fixed = 0
+    while fixed < len(parts) - 1 and not _GLOB.search(parts[fixed]):
+        fixed += 1
+    base = "/".join(parts[:fixed]) or ("/" if pattern.startswith("/") else ".")
+    matcher = compile_pattern("/".join(parts[fixed:]))
+    found, visited = [], set()
+    for root, dirs, names in os.walk(base, followlinks=True):
+        try:
+            st = os.stat(root)
+        except OSError:
+            dirs[:] = []
+            continue
+        if (st.st_dev, st.st_ino) in visited:
+            dirs[:] = []  # reached again through a link: already searched
+            continue
+        visited.add((st.st_dev, st.st_ino))
+        dirs[:] = sorted(d for d in dirs if not d.startswith("."))
+        for name in dirs + [n for n in names if not n.startswith(".")]:
+            path = os.path.join(root, name)
+            rel = os.path.relpath(path, base).replace(os.sep, "/")
+            if matcher.fullmatch(rel):
+                found.append(path[2:] if base == "." and path.startswith("./") else path)
+    return found
+
+
 def spec_files(paths: list[str], selector=None) -> Expansion:
     """Expand folders and globs into spec files: each argument in order, each expansion sorted."""
     out = Expansion([], [], [])
@@ -65,7 +96,7 @@ def spec_files(paths: list[str], selector=None) -> Expansion:
         if raw == "-":
             add("-", path, found=False)  # standard input
         elif _GLOB.search(raw) and not os.path.lexists(raw):
-            matches = sorted(glob.glob(raw, recursive=True))
+            matches = sorted(recursive_glob(raw) if "**" in raw else glob.glob(raw))
             if not any(os.path.isdir(m) or m.endswith(SPEC_SUFFIXES) for m in matches):
                 out.unmatched.append(raw)
             for match in matches:
@@ -239,19 +270,30 @@ def silence(stream) -> None:
         pass
 
 
-def write_stdout(stdout, stderr, fill, machine: bool) -> bool:
+def _stream_settings(stdout, fmt: str) -> dict:
+    """How a report of format ``fmt`` is encoded on standard output (see ``write_stdout``)."""
+    utf8 = (getattr(stdout, "encoding", None) or "").lower().replace("-", "").replace("_", "") == "utf8"
+    if fmt in ("html", "junit"):  # markup can say any character in ASCII, as a character reference
+        return {} if utf8 else {"encoding": "ascii", "errors": "xmlcharrefreplace"}
+    if fmt in MACHINE_FORMATS:
+        return {"encoding": "utf-8", "errors": "strict"}
+    return {"errors": "backslashreplace"}
+
+
+def write_stdout(stdout, stderr, fill, fmt: str) -> bool:
     """Write the report to standard output; False (after saying why) when it cannot be written.
 
-    Machine formats (JSON, SARIF, JUnit XML, CSV, HTML) are UTF-8 whatever the locale says; the
-    formats for people follow the terminal's encoding, with what it cannot show escaped.  A
+    JSON, SARIF and CSV are UTF-8 whatever the locale says; HTML and JUnit XML are UTF-8, or ASCII
+    with character references where standard output is not UTF-8; the formats for people follow
+    the terminal's encoding, with what it cannot show escaped.  A
     reader that stops early (``| head``) is not a failure: the run's exit code still stands."""
     if stdout is None:
         stderr.write("speccheck: standard output is closed; name a report file with -o FILE\n")
         return False
-    if hasattr(stdout, "reconfigure"):
+    settings = _stream_settings(stdout, fmt)
+    if settings and hasattr(stdout, "reconfigure"):
         try:
-            stdout.reconfigure(**({"encoding": "utf-8", "errors": "strict"} if machine
-                                  else {"errors": "backslashreplace"}))
+            stdout.reconfigure(**settings)
         except (OSError, ValueError, AttributeError):
             pass
     try:

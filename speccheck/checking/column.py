@@ -122,6 +122,7 @@ class BlockCheck:
         conflicts.report(self)
         column = cells.build(self)
         column_limits.report_limits(self, column)
+        column_limits.report_bandwidth(self, column)
         if self.notes:
             column_limits.report_assumptions(self, column)
         return column
@@ -194,7 +195,7 @@ class BlockCheck:
         """Point values of every quantity computable from the stated typical values."""
         idx = self.net.index
         known = {idx[q]: math.log(s.typical) for q, s in self.stated.items()
-                 if s.typical is not None and idx[q] not in exclude}
+                 if s.typical is not None and s.typical > 0.0 and idx[q] not in exclude}
         known |= {idx[q]: math.log(v) for q, v in DEFAULTS.items() if q not in self.stated}
         return evaluate(self.net, known)
 

@@ -40,6 +40,27 @@ def report_limits(col, cells: dict[str, Cell]) -> None:
                 col.dotted(col.net.names[k]) for k in support if col.net.names[k] != q))
 
 
+_BANDWIDTHS = ("spectral_bandwidth", "spectral_bandwidth_wavelength", "spectral_bandwidth_wavenumber")
+
+
+def report_bandwidth(col, cells: dict[str, Cell]) -> None:
+    """A spectrum wider than its carrier frequency reaches zero frequency: no optical pulse has
+    one (definition of the FWHM about a positive carrier)."""
+    bw, carrier = cells.get("spectral_bandwidth"), cells.get("carrier_frequency")
+    if not (bw and carrier and bw.value and carrier.value) or bw.status == "conflict":
+        return
+    if bw.value <= carrier.value:  # the numbers as stated: no tolerance makes this possible
+        return
+    where = next((q for q in _BANDWIDTHS if q in col.stated), "spectral_bandwidth")
+    col.report.add(
+        "bandwidth-exceeds-carrier",
+        f"{col.name}: the spectral bandwidth {col.show_interval('spectral_bandwidth', bw.low, bw.high, bw.value)} "
+        f"is larger than the carrier frequency "
+        f"{col.show_interval('carrier_frequency', carrier.low, carrier.high, carrier.value)}: the spectrum "
+        "would reach below zero frequency (a bandwidth in the wrong unit, or a typing slip?)",
+        col.at(where), quantities=[col.dotted("spectral_bandwidth"), col.dotted("carrier_frequency")])
+
+
 def report_assumptions(col, cells: dict[str, Cell]) -> None:
     state = col.diagnosis.state
     for key, default in (("pulse_shape", DEFAULT_SHAPE), ("beam_profile", DEFAULT_PROFILE)):

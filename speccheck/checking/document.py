@@ -60,7 +60,7 @@ class Checker:
             block = data.get("laser")
             if isinstance(block, dict):
                 sheet["laser"] = BlockCheck(self, "laser", block, tolerance, report).run()
-                shape_stated = block.get("pulse_shape") in PULSE_SHAPES
+                shape_stated = isinstance(block.get("pulse_shape"), str) and block["pulse_shape"] in PULSE_SHAPES
                 shape = block["pulse_shape"] if shape_stated else DEFAULT_SHAPE
                 points = data.get("operating_points")
                 if isinstance(points, list):

@@ -63,6 +63,14 @@ def photon_energy(walk, v: Visit) -> None:
     name, incident, params, at = v.name, v.incident, v.params, v.at
     pump = interval(incident["wavelength"]) if incident.get("wavelength") else None
     s, i = params.get("signal_wavelength"), params.get("idler_wavelength")
+    if pump and (s is None) != (i is None):  # one given: it must carry less photon energy than the pump
+        given, label = (s, "signal") if s is not None else (i, "idler")
+        if given[2] <= pump[0]:
+            walk.report.add("photon-energy-not-conserved",
+                            f"{name}: the {label} at {given[1] * 1e9:.5g} nm would carry more photon energy than "
+                            f"the pump at {pump[1] * 1e9:.5g} nm (1/λp = 1/λs + 1/λi): no parametric stage "
+                            f"makes it", at + (f"{label}_wavelength",))
+        return
     if not (pump and s and i):
         return
     # 1/λp = 1/λs + 1/λi (photon-energy conservation); compare with the intervals

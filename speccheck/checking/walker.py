@@ -59,7 +59,7 @@ class PathWalk:
         self.report = report
         self.sheet = sheet
         laser = data.get("laser") if isinstance(data.get("laser"), dict) else {}
-        self.categorical = {k: laser[k] for k in ("pulse_shape", "beam_profile") if k in laser}
+        self.categorical = {k: laser[k] for k in ("pulse_shape", "beam_profile") if isinstance(laser.get(k), str)}
         self.context = None
         self.ends: list[str] = []  # the last column of each branch, in the order walked
         defaults = data.get("defaults") if isinstance(data.get("defaults"), dict) else {}
@@ -124,12 +124,32 @@ class PathWalk:
                                 f"{', '.join(f'{c:g}' for c in p.choices)}", at + (p.name,))
                 ok = False
                 continue
-            if p.fraction and s.low > 1.0:
-                self.report.add("stage-parameter", f"{label}: {s.text} is more than 100%", at + (p.name,),
-                                quantities=(label,))
-                ok = False
-                continue
-            out[p.name] = (s.low, s.typical, s.high)
+            signed = p.dimension in ("s^2", "s^3")
+            low, typ, high = s.low, s.typical, s.high
+            if typ is None:  # a bound or {min, max}: a stage needs both ends, and works on the middle
+                if not math.isfinite(high) or (low <= 0.0 and not signed) or s.text.lstrip()[:1] in "<>≤≥=":
+                    self.report.add("stage-parameter", f"{label}: {s.text} leaves the parameter open on one "
+                                    "side; a stage parameter needs a value ('3 mm', '3 mm ± 0.1 mm') or both "
+                                    "ends ({min: …, max: …})", at + (p.name,), quantities=(label,))
+                    ok = False
+                    continue
+                typ = (low + high) / 2.0
+            if p.fraction:
+                if low > 1.0:
+                    self.report.add("stage-parameter", f"{label}: {s.text} is more than 100%", at + (p.name,),
+                                    quantities=(label,))
+                    ok = False
+                    continue
+                # the spec's own interval (a ± or {min, max}) reaching past an end is said; the default
+                # tolerance of a plain "99%" is only clipped
+                own = any(mark in s.text for mark in ("±", "+/-", "+-", "{"))
+                past = [end for end, beyond in (("100%", high > 1.0), ("0%", own and 2.0 * typ - high < 0.0)) if beyond]
+                high, typ = min(high, 1.0), min(typ, 1.0)
+                if own and past:
+                    ends = past
+                    self.report.add("fraction-clipped", f"{label}: {s.text} reaches past {' and '.join(ends)}; "
+                                    f"taken as {low:.4g} … {high:.4g}", at + (p.name,), quantities=(label,))
+            out[p.name] = (low, typ, high)
         if kind.one_of and not any(k in out for k in kind.one_of):
             self.report.add("stage-parameter", f"{name}: a {kind.name} stage needs one of "
                             f"{', '.join(kind.one_of)}", at, key=True)
@@ -168,6 +188,20 @@ class PathWalk:
             cells["net_tod"] = Cell("derived", beam.net_tod[0], beam.net_tod[2], beam.net_tod[1], "s^3", "fs^3")
         return cells
 
+    def run_check(self, check, visit: Visit) -> None:
+        try:
+            check.run(self, visit)
+        except NUMERIC_FAILURES as exc:
+            self.out_of_range(visit.name, visit.kind, visit.at, exc, check.summary)
+
+    def out_of_range(self, name: str, kind, at: tuple, exc: Exception, what: str = "") -> None:
+        """Numbers so far outside a model's range that its arithmetic fails (an overflow, a
+        division by zero): said at the stage, instead of a wrong number or a traceback."""
+        self.report.add("out-of-model-range",
+                        f"{name}: the {kind.name} stage" + (f" ({what})" if what else "") + " cannot be computed "
+                        f"for the beam that enters it ({_failure(exc)}); a number before it is far outside "
+                        "what its model is made for", at, key=True)
+
     def show(self, q: str, si: float, unit: str) -> str:
         return wording.show(self.c.units, si, unit)
 
@@ -190,7 +224,7 @@ class PathWalk:
             end_at = here
             if not isinstance(stage, dict):
                 continue
-            kind = STAGE_KINDS.get(stage.get("kind"))
+            kind = STAGE_KINDS.get(stage["kind"]) if isinstance(stage.get("kind"), str) else None
             name = stage.get("name") if isinstance(stage.get("name"), str) else f"stage {len(self.sheet)}"
             if kind is None:
                 continue  # the schema names the known kinds
@@ -204,19 +238,23 @@ class PathWalk:
             notes: list = []
             ctx = self.stage_context(notes)
             incident = self.sheet.get(columns[-1], {})
-            visit = Visit(name, kind, stage, params, here, incident, kind.apply(beam, params, ctx),
-                          stage.get("measured"), columns)
+            try:
+                out = kind.apply(beam, params, ctx)
+            except NUMERIC_FAILURES as exc:
+                self.out_of_range(name, kind, here, exc)
+                return  # the beam after this stage is not known: the rest of the branch cannot follow
+            visit = Visit(name, kind, stage, params, here, incident, out, stage.get("measured"), columns)
             for text in notes:
                 self.report.add("stage-model", f"{name}: {text}", here, key=True)
             for check in checks_of(kind, "incident"):
-                check.run(self, visit)
+                self.run_check(check, visit)
             cells = self.column(name, visit.beam, visit.measured, here)
             self.sheet[name] = cells
             columns = columns + [name]
             beam = beam_from(cells, visit.beam, ctx.transform_limit)
             visit.cells, visit.columns = cells, columns
             for check in checks_of(kind, "column"):
-                check.run(self, visit)
+                self.run_check(check, visit)
             if "b_integral_total" not in cells:  # a stage without a nonlinear phase of its own
                 self.carry_b(columns)
             if kind.splits:
@@ -286,6 +324,17 @@ class PathWalk:
 def _gdd_cell(v: tuple) -> Cell:
     return Cell("derived", v[0], v[2], v[1], "s^2", "fs^2")
 
+
+
+NUMERIC_FAILURES = (OverflowError, ZeroDivisionError, ValueError, FloatingPointError)
+
+
+def _failure(exc: Exception) -> str:
+    if isinstance(exc, OverflowError):
+        return "a number overflows"
+    if isinstance(exc, ZeroDivisionError):
+        return "a division by zero"
+    return "a number outside a formula's domain"
 
 
 def check_path(checker, data: dict, tolerance: float, report, sheet: dict) -> list[str]:

@@ -245,9 +245,11 @@ def _parametric(beam, p, ctx):
     pump = beam.get("wavelength")
     signal, idler = p.get("signal_wavelength"), p.get("idler_wavelength")
     if pump and signal and idler is None:
-        idler = inverted(_difference(inverted(pump), inverted(signal)))
+        rest = _difference(inverted(pump), inverted(signal))
+        idler = inverted(rest) if rest else None  # None: energy conservation forbids this signal
     if pump and idler and signal is None:
-        signal = inverted(_difference(inverted(pump), inverted(idler)))
+        rest = _difference(inverted(pump), inverted(idler))
+        signal = inverted(rest) if rest else None
     out = signal if p.get("output", "signal") == "signal" else idler
     changes = {q: scaled(beam.get(q), p["efficiency"]) for q in ("pulse_energy", "average_power") if beam.get(q)}
     changes["wavelength"] = out
@@ -258,10 +260,14 @@ def _parametric(beam, p, ctx):
                    net_tod=(0.0, 0.0, 0.0))
 
 
-def _difference(a: Value, b: Value) -> Value:
+def _difference(a: Value, b: Value) -> Value | None:
+    """a − b for positive intervals, or None when no positive difference is possible."""
     lo, hi = a[0] - b[2], a[2] - b[0]
+    if not hi > 0.0:
+        return None
     typ = a[1] - b[1] if a[1] is not None and b[1] is not None else None
-    return (max(lo, 1e-300), typ, hi)
+    typ = typ if typ is not None and typ > 0.0 else None
+    return (max(lo, 0.0), typ, hi)
 
 
 def _telescope(beam, p, ctx):

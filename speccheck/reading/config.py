@@ -288,6 +288,10 @@ def pattern_problem(pattern: str) -> str | None:
         return "patterns are relative to the configuration file's folder, not absolute"
     if ".." in PurePosixPath(pattern).parts:
         return "patterns cannot reach outside the configuration file's folder ('..')"
+    try:
+        compile_pattern(pattern)
+    except re.error as exc:  # "[]", "[!]", "[z-a]": a character class that is empty or backwards
+        return f"not a valid glob pattern (its character class: {exc.msg})"
     return None
 
 

@@ -33,6 +33,13 @@ class Limits:
     max_nodes: int = 200_000  # constructed nodes, aliases expanded
     max_depth: int = 64
 
+    def __post_init__(self) -> None:
+        # nodes are built (and validated) recursively: deeper than this would exhaust Python's stack
+        object.__setattr__(self, "max_depth", min(self.max_depth, MAX_DEPTH))
+
+
+MAX_DEPTH = 200  # the deepest nesting any setting of max_depth allows
+
 
 @dataclass(frozen=True)
 class Problem:

@@ -95,6 +95,8 @@ class ValueParser:
             return self._parse_mapping(key, raw, tolerance)
         if isinstance(raw, bool) or raw is None:
             raise ValueProblem("invalid-value", f"{key}: expected a number with a unit, got {_show(raw)}")
+        if isinstance(raw, list):
+            raise ValueProblem("invalid-value", f"{key}: expected a number with a unit, got a list")
         if isinstance(raw, (int, float)):
             return self._from_number(key, _to_float(raw, f"{key}:"), None, tolerance, str(raw))
         text = str(raw)
@@ -149,6 +151,9 @@ class ValueParser:
         parsed: dict[str, Stated] = {}
         for name in ("min", "typical", "max"):
             if name in raw:
+                if isinstance(raw[name], (dict, list)):
+                    raise ValueProblem("invalid-value", f"{key}.{name}: expected a plain value like '20 W', got "
+                                       f"{'a mapping' if isinstance(raw[name], dict) else 'a list'}")
                 parsed[name] = self.parse(f"{key}.{name}", raw[name], 0.0)
         if not parsed:
             raise ValueProblem("invalid-value", f"{key}: give at least one of min, typical, max")
@@ -210,7 +215,9 @@ class ValueParser:
         base = key.split(".")[0]
         parent = key.rpartition(".")[0]  # "s1.gdd.min": a part of the {min, typical, max} of "s1.gdd"
         names = (self._extra.get(key) or self._extra.get(parent) or self._extra.get(base) or ALIASES.get(base)
-                 or {BY_NAME[base].si_unit: base})
+                 or ({BY_NAME[base].si_unit: base} if base in BY_NAME else None))
+        if names is None:
+            raise ValueProblem("invalid-value", f"{key}: {text.strip()!r} is not a value speccheck knows here")
         if not math.isfinite(number):
             raise ValueProblem("non-finite-value", f"{key}: {text.strip()!r} is not a finite number")
         if not unit:

@@ -107,6 +107,22 @@ _RULES = (
          "compared with the stated spectral_bandwidth and autocorrelation_width, with the tolerance.",
          "spectral_bandwidth: 8 nm   # spectrum.csv has 12 nm", "spectral_bandwidth: 12 nm"),
     # ---- the beam path
+    Rule("bandwidth-exceeds-carrier", "error", "a spectral bandwidth larger than its carrier frequency",
+         "The FWHM bandwidth Δν of an optical pulse is centred on its carrier frequency ν0 = c/λ; a Δν "
+         "larger than ν0 would put half the spectrum at negative frequencies. Usually a unit is wrong "
+         "(THz for nm, cm^-1 for nm) or a digit slipped (definition of the spectral FWHM).",
+         "wavelength: 800 nm\nspectral_bandwidth: 500 THz", "wavelength: 800 nm\nspectral_bandwidth: 5 THz"),
+    Rule("fraction-clipped", "warning", "a share of the beam whose interval reaches past 0% or 100%",
+         "A transmission, efficiency or splitter ratio is a fraction of the beam: it cannot be more than "
+         "100% or less than 0%. An interval that reaches past an end (1.5 ± 0.6) is clipped there, and "
+         "this warning says so; one wholly outside is a stage-parameter error.",
+         "transmission: 0.95 ± 0.1", "transmission: 0.95 ± 0.04"),
+    Rule("out-of-model-range", "error", "a stage that cannot be computed for the beam that enters it",
+         "A number before the stage is so far outside what the stage's model is made for (a wavelength "
+         "of 1e51 m into a glass, a beam shrunk by 1e-160 before a focus) that its arithmetic overflows "
+         "or divides by zero. The stage is reported instead of a wrong number, and the rest of its "
+         "branch is not followed.",
+         "{kind: telescope, magnification: 1e-160} before a focus", "{kind: telescope, magnification: 0.5}"),
     Rule("stage-parameter", "error", "a stage parameter that is missing, misplaced or out of range",
          "Each stage kind takes its own parameters (`speccheck explain stage-parameter` lists them); "
          "a transmission or efficiency is at most 100%.",

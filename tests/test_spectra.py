@@ -120,6 +120,20 @@ def test_the_frequency_grid_follows_the_spectrum_so_narrow_and_wide_are_alike():
     assert abs(errors[0]) < 0.005 and abs(errors[1]) < 0.005  # 0.441 is 2 ln2/π rounded (0.07 %)
 
 
+@pytest.mark.parametrize("shape", ["gaussian", "sech2"])
+def test_a_broad_spectrum_is_moved_to_frequency_with_the_jacobian(shape):
+    # 150 nm at 800 nm: λ² changes by a factor 1.9 between the half-maximum points, so counts per
+    # unit wavelength taken for counts per unit frequency would be 0.8-1.6 % too wide
+    centre, width = 800e-9, 150e-9
+    nu0, dnu = C / centre, C * width / centre**2
+    lam = np.linspace(450e-9, 1500e-9, 3000)
+    counts = intensity_spectrum(shape, C / lam, nu0, dnu) * (centre / lam) ** 2
+    result = analyse_spectrum(lam, counts, C)
+    assert result.fwhm_frequency == pytest.approx(dnu, rel=0.003)
+    assert result.transform_limited_duration == pytest.approx(true_limit(shape, dnu), rel=0.03)
+    check_interval(result, true_limit(shape, dnu))
+
+
 def test_the_wavelength_width_and_centre_agree_with_the_analytic_spectrum():
     # independent values from the analytic S(λ): its half-maximum points by bisection, its
     # intensity-weighted mean wavelength by a trapezoidal integral on a fine grid
@@ -276,6 +290,37 @@ def test_a_constant_baseline_is_subtracted():
     assert result.fwhm_frequency == pytest.approx(dnu, rel=0.005)
     assert result.transform_limited_duration == pytest.approx(true_limit("gaussian", dnu), rel=0.01)
     assert not any("baseline" in w for w in result.warnings)
+
+
+@pytest.mark.parametrize("shape", ["gaussian", "sech2"])
+def test_a_sloping_baseline_is_subtracted_as_a_line(shape):
+    lam, counts, dnu = spectrum(shape, 800, 10, "survey", noise=1e-3, seed=9)
+    counts = counts + 0.05 + 0.1 * (lam - lam[0]) / (lam[-1] - lam[0])  # 5 % to 15 % of the peak
+    result = analyse_spectrum(lam, counts, C)
+    assert result.fwhm_frequency == pytest.approx(dnu, rel=0.01)
+    assert result.transform_limited_duration == pytest.approx(true_limit(shape, dnu), rel=0.10)
+    check_interval(result, true_limit(shape, dnu))
+    assert any("straight line" in w for w in result.warnings)
+
+
+def test_two_peaks_a_saturated_peak_and_an_over_subtracted_dark_are_said():
+    lam, blue, _ = spectrum("gaussian", 780, 10, "survey")
+    red = spectrum("gaussian", 820, 10, "survey")[1]
+    assert any("dips below half maximum" in w for w in analyse_spectrum(lam, blue + 0.8 * red, C).warnings)
+    assert any("saturated" in w for w in analyse_spectrum(lam, np.minimum(blue, 0.7), C).warnings)
+    dark = blue - 0.1 * np.exp(-(((lam - 600e-9) / 5e-9) ** 2))  # a 10 % hole far from the spectrum
+    assert any("over-subtracted" in w for w in analyse_spectrum(lam, dark, C).warnings)
+
+
+def test_a_narrow_line_finely_sampled_over_a_wide_window():
+    # 0.1 nm at 1040 nm (a 16 ps Gaussian pulse) on 16001 samples across 80 nm
+    centre, width = 1040e-9, 0.1e-9
+    nu0, dnu = C / centre, C * width / centre**2
+    lam = np.linspace(1000e-9, 1080e-9, 16001)
+    counts = intensity_spectrum("gaussian", C / lam, nu0, dnu) * (centre / lam) ** 2
+    result = analyse_spectrum(lam, counts, C)
+    assert result.transform_limited_duration == pytest.approx(true_limit("gaussian", dnu), rel=0.01)
+    check_interval(result, true_limit("gaussian", dnu))
 
 
 def test_a_spectrum_cut_by_the_window_says_so():

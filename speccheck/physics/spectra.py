@@ -22,12 +22,15 @@ Method
    cannot overflow); the abscissae are sorted.
 2. Baseline (iterated with the width): the data farther than ``FAR`` × FWHM
    beyond the half-maximum points, on each side, are cut into up to eight
-   blocks; the lowest block's median, with the blocks that agree with it
-   within their noise, is that side's level.  A side where no other block
-   agrees is a wing still falling, not a baseline.  Two sides that differ by
-   less than the noise of one sample give one flat baseline (at the lower),
-   otherwise a straight line between them; the other reading widens the
-   transform limit's interval.  When neither side qualifies, nothing is
+   blocks.  A straight line is fitted to the blocks' medians of both sides;
+   while a block lies off it by more than three standard errors, the
+   innermost block of the worse side is dropped as a wing not yet down (two
+   must remain per side).  Sides that differ by less than the noise of one
+   sample give a flat baseline at the lower (the line then widens the
+   transform limit's interval), sides farther apart the line.  Without a line,
+   each side on its own is the lowest block with the blocks that agree with
+   it, and a side where none agrees is a wing still falling, not a baseline;
+   the lower side is subtracted.  When neither side qualifies, nothing is
    subtracted (a spectrum that fills the window is not eaten) and a warning
    says so.  The noise σ is each sample's robust deviation from the line
    through its two neighbours (1.4826 × MAD), which a smooth signal hardly
@@ -276,24 +279,55 @@ def _crossings(x: np.ndarray, y: np.ndarray, level: float, dip: float = 0.0) -> 
 
 
 # --------------------------------------------------------------- baseline
-def _side_level(x: np.ndarray, y: np.ndarray, idx: np.ndarray, floor: float) -> tuple[float, float, float] | None:
-    """(abscissa, level, σ) of the baseline on one side, or None.  The side is cut into up to
-    eight blocks; the baseline is the median of the lowest block and of those that agree with it
-    within three standard errors of a block's median (σ from the lower half of the blocks, where
-    a wing still falling does not add to it), or within ``floor``.  A side where no other block
-    agrees with the lowest is a wing still falling (or too short to tell), not a baseline."""
+def _blocks(x: np.ndarray, y: np.ndarray, idx: np.ndarray) -> list[tuple[np.ndarray, float, float, float]]:
+    """The side ``idx`` cut into up to eight blocks, innermost (nearest the peak) last when ``idx``
+    runs outward-to-inward: (indices, centre, median, σ of a sample)."""
     parts = np.array_split(idx, min(8, idx.size // MIN_SIDE))
-    if len(parts) < 2:
+    return [(p, float(np.median(x[p])), float(np.median(y[p])), _neighbour_sigma(x[p], y[p])) for p in parts]
+
+
+def _side_level(x: np.ndarray, y: np.ndarray, blocks, floor: float) -> tuple[float, float, float] | None:
+    """(abscissa, level, σ) of the baseline on one side, or None: the median of the lowest block
+    and of those that agree with it within three standard errors of a block's median (σ from the
+    lower half of the blocks, where a wing still falling does not add to it), or within
+    ``floor``.  A side where no other block agrees with the lowest is a wing still falling (or
+    too short to tell), not a baseline."""
+    if len(blocks) < 2:
         return None
-    medians = np.array([np.median(y[p]) for p in parts])
-    sigmas = np.array([_neighbour_sigma(x[p], y[p]) for p in parts])
-    smallest = min(p.size for p in parts)
-    quiet = float(np.median(sigmas[np.argsort(medians)[: max(2, len(parts) // 2)]]))
+    medians = np.array([b[2] for b in blocks])
+    sigmas = np.array([b[3] for b in blocks])
+    smallest = min(b[0].size for b in blocks)
+    quiet = float(np.median(sigmas[np.argsort(medians)[: max(2, len(blocks) // 2)]]))
     agree = medians <= medians.min() + max(3.0 * 1.2533 * quiet / math.sqrt(smallest), floor)
     if agree.sum() < 2:
         return None
-    chosen = np.concatenate([p for p, ok in zip(parts, agree) if ok])
+    chosen = np.concatenate([b[0] for b, ok in zip(blocks, agree) if ok])
     return float(np.median(x[chosen])), float(np.median(y[chosen])), float(np.median(sigmas[agree]))
+
+
+def _line(left, right, floor: float):
+    """A straight baseline through the blocks of both sides (each list innermost last), or None:
+    fitted by weighted least squares; while some block lies off the line by more than three
+    standard errors of its median (or ``floor``), the innermost block of the side that lies
+    farthest off is dropped, as a wing not yet down.  Two blocks must remain on each side."""
+    left, right = list(left), list(right)
+    while len(left) >= 2 and len(right) >= 2:
+        blocks = left + right
+        xc = np.array([b[1] for b in blocks])
+        med = np.array([b[2] for b in blocks])
+        tol = np.array([max(3.0 * 1.2533 * b[3] / math.sqrt(b[0].size), floor) for b in blocks])
+        w = 1.0 / tol**2
+        xm = float(np.sum(w * xc) / np.sum(w))
+        slope = float(np.sum(w * (xc - xm) * (med - np.sum(w * med) / np.sum(w))) / np.sum(w * (xc - xm) ** 2))
+        level = float(np.sum(w * med) / np.sum(w))
+        off = np.abs(med - (level + slope * (xc - xm))) / tol
+        if np.all(off <= 1.0):
+            return level, slope, xm
+        if off[: len(left)].max() >= off[len(left):].max():
+            left.pop()
+        else:
+            right.pop()
+    return None
 
 
 @dataclass(frozen=True)
@@ -347,26 +381,38 @@ def _clean(x: np.ndarray, y: np.ndarray, what: str, floor: float) -> _Cleaned:
         if not width > 0:
             raise DataProblem(f"the {what} has no peak wider than its sampling")
         far = (np.flatnonzero(x < lo - FAR * width), np.flatnonzero(x > hi + FAR * width))
-        levels_found = [_side_level(x, y, idx, floor * top) if idx.size >= 2 * MIN_SIDE else None
-                        for idx in far]
-        sides = (levels_found[0] is not None, levels_found[1] is not None)
-        found = [f for f in levels_found if f is not None]
+        # blocks of each side, innermost (nearest the peak) last
+        blocks = [_blocks(x, y, far[0]) if far[0].size >= 2 * MIN_SIDE else [],
+                  _blocks(x, y, far[1][::-1]) if far[1].size >= 2 * MIN_SIDE else []]
+        line = _line(blocks[0], blocks[1], floor * top) if blocks[0] and blocks[1] else None
         alternative = None
-        if len(found) == 2:
-            (x0, b0, s0), (x1, b1, s1) = found
-            sigma, levels = max(s0, s1), (b0, b1)
-            line = b0 + (b1 - b0) * (x - x0) / (x1 - x0)
-            flat = np.full_like(y, min(b0, b1))
+        if line is not None:
+            level, slope, xm = line
+            sigma = float(np.median([b[3] for b in blocks[0] + blocks[1]]))
+            sides = (True, True)
+            x0, x1 = float(np.median(x[far[0]])), float(np.median(x[far[1]]))
+            levels = (level + slope * (x0 - xm), level + slope * (x1 - xm))
+            sloped_base = level + slope * (x - xm)
+            flat = np.full_like(y, min(levels))
             # two sides that differ by less than the noise of one sample are one flat baseline
-            # (the higher may be a wing not yet down); the other reading is kept as an alternative
-            sloped = abs(b1 - b0) > 3.0 * sigma
-            new_base, alternative = (line, flat) if sloped else (flat, line)
-        elif found:
-            new_base = np.full_like(y, found[0][1])
-            sigma, levels, sloped = found[0][2], None, False
+            # (the higher may be a wing not yet down), and the line is kept as an alternative;
+            # sides farther apart than that are joined by the line
+            sloped = abs(levels[1] - levels[0]) > max(3.0 * sigma, floor * top)
+            new_base, alternative = (sloped_base, None) if sloped else (flat, sloped_base)
         else:
-            new_base = np.zeros_like(y)
-            sigma, levels, sloped = None, None, False
+            found = [_side_level(x, y, bl, floor * top) for bl in blocks]
+            sides = (found[0] is not None, found[1] is not None)
+            found = [f for f in found if f is not None]
+            sloped = False
+            if found:
+                # one side, or two that no straight line joins: the lower, as a constant
+                b = min(found, key=lambda f: f[1])
+                new_base = np.full_like(y, b[1])
+                sigma = b[2]
+                levels = (found[0][1], found[1][1]) if len(found) == 2 else None
+            else:
+                new_base = np.zeros_like(y)
+                sigma, levels = None, None
         new_h = width / SMOOTH_PER_FWHM
         # a running mean narrower than the sampling would only blur the straight lines between
         # samples: data that coarse are not smoothed
@@ -436,14 +482,15 @@ def _wing(nu: np.ndarray, p: np.ndarray, noise: np.ndarray, keep: np.ndarray, ed
     if len(idx) < 2 or not p[edge] > 0:
         return None
     x, ln = nu[idx] - nu[edge], np.log(p[idx])
-    w = (p[idx] / noise[idx]) ** 2 if np.all(noise[idx] > 0) else np.ones(len(idx))
+    noisy = bool(np.all(noise[idx] > 0))
+    w = np.maximum(noise[idx] / p[idx], 1e-8) ** -2 if noisy else np.ones(len(idx))  # (p / σ)², finite
     ln = ln + 0.5 / w  # E[ln(p + n)] ≈ ln p - σ²/2p²: noise alone would steepen the wing
     xm = float(np.sum(w * x) / np.sum(w))
     sxx = float(np.sum(w * (x - xm) ** 2))
     if not sxx > 0:
         return None
     rate = float(np.sum(w * (x - xm) * ln) / sxx) * inward  # > 0: falls outward
-    if slower and np.all(noise[idx] > 0):
+    if slower and noisy:
         rate -= slower * math.sqrt(correlated / sxx)
     # no slower than the chord from the peak to the edge: wings that fall more slowly than the
     # spectrum falls on average are not continued from a few noisy samples
@@ -524,7 +571,11 @@ def _flat_phase_fwhm(a: np.ndarray, step: float, dnu_fwhm: float) -> float:
 # ------------------------------------------------------------ the analyses
 def analyse_spectrum(wavelength_m, counts, c: float) -> SpectrumAnalysis:
     """Widths, centre and transform limit of a spectrum S(λ) (counts per unit wavelength)."""
-    if not (isinstance(c, (int, float)) and math.isfinite(c) and c > 0):
+    try:
+        c = float(c)
+    except (TypeError, ValueError):
+        raise ValueError("c must be a speed in m/s, a plain number") from None
+    if not (math.isfinite(c) and c > 0):
         raise ValueError("c must be a positive finite speed")
     lam, s_raw, repeated = _prepare(wavelength_m, counts, "wavelengths", "counts")
     if lam[0] <= 0:
@@ -619,6 +670,10 @@ def _spectrum_warnings(lam: np.ndarray, s_raw: np.ndarray, cl: _Cleaned, warning
         warnings.append(f"the baseline differs between the two sides of the spectrum "
                         f"({_pct(cl.side_levels[0])} and {_pct(cl.side_levels[1])} of the peak); a straight "
                         "line between them was subtracted.")
+    elif abs(cl.side_levels[0] - cl.side_levels[1]) > max(3.0 * cl.sigma, SPECTRUM_BASELINE_FLOOR):
+        warnings.append(f"the baseline differs between the two sides of the spectrum "
+                        f"({_pct(cl.side_levels[0])} and {_pct(cl.side_levels[1])} of the peak) and no straight "
+                        "line joins them; the lower was subtracted.")
     edge_level = max(CENTRAL_THRESHOLD * cl.sigma_s, 1e-3)
     for level, side, at in ((cl.wing_levels[0], "short", lam[0]), (cl.wing_levels[1], "long", lam[-1])):
         if level > edge_level:

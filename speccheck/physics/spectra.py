@@ -73,8 +73,9 @@ fit to the logarithm of the top half, each half-maximum point from a cubic
 fitted to the raw samples between 20 % and 80 % of the peak (the Hermite
 crossing of the smoothed trace where there are too few samples).  The interval
 is two standard errors of those fits, the spread over fitting bands
-``AC_BANDS``, and ``NUMERICAL_MARGIN``.  A trace that falls below half maximum
-on one side only is mirrored about its peak (an autocorrelation is
+``AC_BANDS`` (and, when a wing does not reach the baseline, the trace above
+its lowest value), and ``NUMERICAL_MARGIN``.  A trace that falls below half
+maximum on one side only is mirrored about its peak (an autocorrelation is
 symmetric), with a warning.
 """
 
@@ -232,14 +233,20 @@ def _noise_gain(x: np.ndarray, h: float, centre: float, reach: float) -> float:
     return math.sqrt(total / _PROBES)
 
 
-def _neighbour_sigma(x: np.ndarray, y: np.ndarray) -> float:
-    """σ from each sample's deviation from the line through its two neighbours (robust)."""
+def _neighbour_residuals(x: np.ndarray, y: np.ndarray) -> np.ndarray:
+    """Each sample's deviation from the line through its two neighbours, scaled to the σ of one
+    sample's noise; a smooth signal hardly adds to it."""
     if x.size < 3:
-        return 0.0
+        return np.zeros(0)
     a = (x[2:] - x[1:-1]) / (x[2:] - x[:-2])
     b = 1.0 - a
-    r = (y[1:-1] - a * y[:-2] - b * y[2:]) / np.sqrt(1.0 + a * a + b * b)
-    return float(_MAD * np.median(np.abs(r)))
+    return (y[1:-1] - a * y[:-2] - b * y[2:]) / np.sqrt(1.0 + a * a + b * b)
+
+
+def _neighbour_sigma(x: np.ndarray, y: np.ndarray) -> float:
+    """σ of the noise, robustly (1.4826 × the median absolute neighbour residual)."""
+    r = _neighbour_residuals(x, y)
+    return float(_MAD * np.median(np.abs(r))) if r.size else 0.0
 
 
 # ---------------------------------------------------------------- widths
@@ -279,47 +286,47 @@ def _crossings(x: np.ndarray, y: np.ndarray, level: float, dip: float = 0.0) -> 
 
 
 # --------------------------------------------------------------- baseline
-def _blocks(x: np.ndarray, y: np.ndarray, idx: np.ndarray) -> list[tuple[np.ndarray, float, float, float]]:
-    """The side ``idx`` cut into up to eight blocks, innermost (nearest the peak) last when ``idx``
-    runs outward-to-inward: (indices, centre, median, σ of a sample)."""
+def _blocks(x: np.ndarray, y: np.ndarray, idx: np.ndarray) -> list[tuple[np.ndarray, float, float]]:
+    """The side ``idx`` (ordered outermost first) cut into up to eight blocks, innermost last:
+    (indices, centre, median)."""
     parts = np.array_split(idx, min(8, idx.size // MIN_SIDE))
-    return [(p, float(np.median(x[p])), float(np.median(y[p])), _neighbour_sigma(x[p], y[p])) for p in parts]
+    return [(p, float(np.median(x[p])), float(np.median(y[p]))) for p in parts]
 
 
-def _side_level(x: np.ndarray, y: np.ndarray, blocks, floor: float) -> tuple[float, float, float] | None:
-    """(abscissa, level, σ) of the baseline on one side, or None: the median of the lowest block
-    and of those that agree with it within three standard errors of a block's median (σ from the
-    lower half of the blocks, where a wing still falling does not add to it), or within
-    ``floor``.  A side where no other block agrees with the lowest is a wing still falling (or
-    too short to tell), not a baseline."""
+def _tolerance(sigma: float, n: int, floor: float) -> float:
+    """Three standard errors of the median of n samples of noise σ (1.2533 σ/√n), at least floor."""
+    return max(3.0 * 1.2533 * sigma / math.sqrt(n), floor)
+
+
+def _side_level(x: np.ndarray, y: np.ndarray, blocks, sigma: float, floor: float) -> tuple[float, float, int] | None:
+    """(abscissa, level, samples) of the baseline on one side, or None: the median of the lowest
+    block and of the blocks that agree with it.  A side where no other block agrees with the
+    lowest is a wing still falling (or too short to tell), not a baseline."""
     if len(blocks) < 2:
         return None
     medians = np.array([b[2] for b in blocks])
-    sigmas = np.array([b[3] for b in blocks])
-    smallest = min(b[0].size for b in blocks)
-    quiet = float(np.median(sigmas[np.argsort(medians)[: max(2, len(blocks) // 2)]]))
-    agree = medians <= medians.min() + max(3.0 * 1.2533 * quiet / math.sqrt(smallest), floor)
+    agree = medians <= medians.min() + _tolerance(sigma, min(b[0].size for b in blocks), floor)
     if agree.sum() < 2:
         return None
     chosen = np.concatenate([b[0] for b, ok in zip(blocks, agree) if ok])
-    return float(np.median(x[chosen])), float(np.median(y[chosen])), float(np.median(sigmas[agree]))
+    return float(np.median(x[chosen])), float(np.median(y[chosen])), int(chosen.size)
 
 
-def _line(left, right, floor: float):
-    """A straight baseline through the blocks of both sides (each list innermost last), or None:
-    fitted by weighted least squares; while some block lies off the line by more than three
-    standard errors of its median (or ``floor``), the innermost block of the side that lies
-    farthest off is dropped, as a wing not yet down.  Two blocks must remain on each side."""
+def _line(left, right, sigma: float, floor: float) -> tuple[float, float, float] | None:
+    """(level, slope, abscissa of the level) of a straight baseline through the blocks of both
+    sides (each list innermost last), or None: weighted least squares; while some block lies off
+    the line by more than its tolerance, the innermost block of the side that lies farthest off is
+    dropped, as a wing not yet down.  Two blocks must remain on each side."""
     left, right = list(left), list(right)
     while len(left) >= 2 and len(right) >= 2:
         blocks = left + right
         xc = np.array([b[1] for b in blocks])
         med = np.array([b[2] for b in blocks])
-        tol = np.array([max(3.0 * 1.2533 * b[3] / math.sqrt(b[0].size), floor) for b in blocks])
+        tol = np.array([_tolerance(sigma, b[0].size, floor) for b in blocks])
         w = 1.0 / tol**2
         xm = float(np.sum(w * xc) / np.sum(w))
-        slope = float(np.sum(w * (xc - xm) * (med - np.sum(w * med) / np.sum(w))) / np.sum(w * (xc - xm) ** 2))
         level = float(np.sum(w * med) / np.sum(w))
+        slope = float(np.sum(w * (xc - xm) * (med - level)) / np.sum(w * (xc - xm) ** 2))
         off = np.abs(med - (level + slope * (xc - xm))) / tol
         if np.all(off <= 1.0):
             return level, slope, xm
@@ -381,14 +388,17 @@ def _clean(x: np.ndarray, y: np.ndarray, what: str, floor: float) -> _Cleaned:
         if not width > 0:
             raise DataProblem(f"the {what} has no peak wider than its sampling")
         far = (np.flatnonzero(x < lo - FAR * width), np.flatnonzero(x > hi + FAR * width))
-        # blocks of each side, innermost (nearest the peak) last
+        # blocks of each side, innermost (nearest the peak) last; the noise from all their samples
         blocks = [_blocks(x, y, far[0]) if far[0].size >= 2 * MIN_SIDE else [],
                   _blocks(x, y, far[1][::-1]) if far[1].size >= 2 * MIN_SIDE else []]
-        line = _line(blocks[0], blocks[1], floor * top) if blocks[0] and blocks[1] else None
+        residuals = [_neighbour_residuals(x[f], y[f]) for f, bl in zip(far, blocks) if bl]
+        pooled = float(_MAD * np.median(np.abs(np.concatenate(residuals)))) if residuals else 0.0
+        line = _line(blocks[0], blocks[1], pooled, floor * top) if blocks[0] and blocks[1] else None
         alternative = None
+        sloped = False
         if line is not None:
             level, slope, xm = line
-            sigma = float(np.median([b[3] for b in blocks[0] + blocks[1]]))
+            sigma = pooled
             sides = (True, True)
             x0, x1 = float(np.median(x[far[0]])), float(np.median(x[far[1]]))
             levels = (level + slope * (x0 - xm), level + slope * (x1 - xm))
@@ -400,16 +410,20 @@ def _clean(x: np.ndarray, y: np.ndarray, what: str, floor: float) -> _Cleaned:
             sloped = abs(levels[1] - levels[0]) > max(3.0 * sigma, floor * top)
             new_base, alternative = (sloped_base, None) if sloped else (flat, sloped_base)
         else:
-            found = [_side_level(x, y, bl, floor * top) for bl in blocks]
+            found = [_side_level(x, y, bl, pooled, floor * top) for bl in blocks]
             sides = (found[0] is not None, found[1] is not None)
             found = [f for f in found if f is not None]
-            sloped = False
-            if found:
-                # one side, or two that no straight line joins: the lower, as a constant
-                b = min(found, key=lambda f: f[1])
-                new_base = np.full_like(y, b[1])
-                sigma = b[2]
-                levels = (found[0][1], found[1][1]) if len(found) == 2 else None
+            levels = (found[0][1], found[1][1]) if len(found) == 2 else None
+            if len(found) == 2 and abs(found[0][1] - found[1][1]) <= _tolerance(
+                    pooled, 1, 0.0) * math.sqrt(1.0 / found[0][2] + 1.0 / found[1][2]) + floor * top:
+                # two sides that agree within their standard errors: their weighted mean
+                weights = np.array([f[2] for f in found], float)
+                new_base = np.full_like(y, float(np.sum(weights * [f[1] for f in found]) / weights.sum()))
+                sigma = pooled
+            elif found:
+                # one side, or two that disagree and no straight line joins: the lower, as a constant
+                new_base = np.full_like(y, min(f[1] for f in found))
+                sigma = pooled
             else:
                 new_base = np.zeros_like(y)
                 sigma, levels = None, None
@@ -562,9 +576,9 @@ def _flat_phase_fwhm(a: np.ndarray, step: float, dnu_fwhm: float) -> float:
         if below[0] >= HALF_WIDTH_SAMPLES or n >= MAX_FFT:
             break
         n *= 2
-    j = int(below[0])
-    t = np.arange(max(j - 3, 0), min(j + 3, n // 2)) / (n * step)
-    cross = _crossings(t, power[max(j - 3, 0):min(j + 3, n // 2)], 0.5 * float(power[0]))
+    j = int(below[0])  # the first sample below half maximum; the window ends there
+    i = max(j - 3, 0)
+    cross = _crossings(np.arange(i, j + 1) / (n * step), power[i:j + 1], 0.5 * float(power[0]))
     return 2.0 * float(cross.right)  # |E(t)| of a real, nonnegative amplitude spectrum is even in t
 
 
@@ -603,8 +617,8 @@ def analyse_spectrum(wavelength_m, counts, c: float) -> SpectrumAnalysis:
         raise DataProblem("the spectrum per unit frequency does not fall to half its peak inside the window")
     fwhm_nu = cross_nu.right - cross_nu.left
 
-    def keep(k: float, s: np.ndarray = cl.smooth) -> np.ndarray:
-        return _support(s, cl.peak, max(k * cl.sigma_s, THRESHOLD_FLOOR), cl.sigma_s)[::-1]
+    def keep(k: float, s: np.ndarray = cl.smooth, floor: float = THRESHOLD_FLOOR) -> np.ndarray:
+        return _support(s, cl.peak, max(k * cl.sigma_s, floor), cl.sigma_s)[::-1]
 
     raw_nu = np.clip(cl.y, 0.0, None)[::-1] * jac
     noise_s, noise_raw = cl.sigma_s * jac, cl.sigma * jac
@@ -630,8 +644,10 @@ def analyse_spectrum(wavelength_m, counts, c: float) -> SpectrumAnalysis:
         limits["raw wings", k] = limit(k, 0.0, raw_nu, noise_raw, correlated=1.0)
     if cl.alternative is not None:  # the two sides of the baseline read the other way
         other = cl.smooth + cl.alternative
-        limits["other baseline", k] = limit(k, None, other[::-1] * jac, kept=keep(k, other))
-        limits["other baseline wings", k] = limit(k, 0.0, other[::-1] * jac, kept=keep(k, other))
+        # nothing below the difference between the two readings is known either
+        kept = keep(k, other, max(THRESHOLD_FLOOR, float(np.abs(cl.alternative).max())))
+        limits["other baseline", k] = limit(k, None, other[::-1] * jac, kept=kept)
+        limits["other baseline wings", k] = limit(k, 0.0, other[::-1] * jac, kept=kept)
     if not any(cl.baseline_sides):
         # the true baseline lies somewhere between zero and the lowest smoothed value
         lowest = float(cl.smooth.min())
@@ -794,10 +810,18 @@ def analyse_autocorrelation(delay_s, counts) -> AutocorrelationAnalysis:
     # two standard errors of the crossings, and of the peak's height: a relative error ε of the
     # height moves both crossings by ε · half / slope, about ε × FWHM / 2.8 each (2.8 for a Gaussian)
     spread = 2.0 * max(spreads) + 2.0 * (2.0 * ln_sigma * fwhm / 2.8)
+    sides = cl.baseline_sides
+    lowest = float(cl.smooth.min())
+    if not all(sides) and lowest > 0:
+        # a wing that never reaches the baseline leaves it anywhere between the baseline found (or
+        # zero) and the lowest value of the trace: the narrower trace above that lowest value too
+        shifted = (cl.smooth - lowest) / (1.0 - lowest)
+        cr = _crossings(x, shifted, 0.5)
+        if cr.left is not None or cr.right is not None:
+            estimates.append(_ac_width(centre, cr.left, cr.right))
     low = (min(estimates) - spread) * (1.0 - NUMERICAL_MARGIN)
     high = (max(estimates) + spread) * (1.0 + NUMERICAL_MARGIN)
 
-    sides = cl.baseline_sides
     for ok, side, level in ((sides[0], "negative", cl.wing_levels[0]), (sides[1], "positive", cl.wing_levels[1])):
         if not ok:
             warnings.append(f"the trace's wings do not reach the baseline on its {side}-delay side (it ends at "

@@ -55,3 +55,60 @@ def test_the_table_can_be_turned_off(cache, monkeypatch):
     system.parse("nJ")
     system.save()
     assert list(cache.iterdir()) == []
+
+
+# -- the table cannot change an answer
+
+
+def _table(cache):
+    (table_file,) = cache.glob("units-*.json")
+    return table_file, json.loads(table_file.read_text("utf-8"))
+
+
+def test_a_tampered_entry_is_dropped_and_answered_again(cache):
+    first = UnitSystem()
+    first.parse("nJ")
+    first.parse("fs")
+    first.save()
+    table_file, table = _table(cache)
+    table["units"]["fs"][1] = float("nan")  # a non-finite factor
+    table["units"]["10**10**10"] = ["10**10**10", 1.0, "1", "dimensionless"]  # a text the screen refuses
+    table["units"]["ps"] = ["ps", "1e-12", "s", "[time]"]  # a factor that is not a number
+    table_file.write_text(json.dumps(table))
+    second = UnitSystem()
+    assert second.parse("fs").factor == pytest.approx(1e-15)  # recomputed by pint
+    assert "10**10**10" not in second._table and "ps" not in second._table
+    with pytest.raises(Exception):
+        second.parse("10**10**10")  # the screen runs before the table is consulted
+    second.save()
+    _, rewritten = _table(cache)
+    assert "10**10**10" not in rewritten["units"] and rewritten["units"]["fs"][1] == pytest.approx(1e-15)
+
+
+def test_a_table_whose_defining_constants_are_not_the_si_ones_is_not_used(cache):
+    UnitSystem().save()
+    table_file, table = _table(cache)
+    table["constants"]["c"] = 3e8  # the SI defines c = 299 792 458 m/s exactly (2019 redefinition)
+    table_file.write_text(json.dumps(table))
+    system = UnitSystem()
+    assert system.constants.c == 299792458.0
+
+
+def test_runs_that_save_at_the_same_time_keep_each_others_entries(cache):
+    a, b = UnitSystem(), UnitSystem()  # both start from the same (empty) table
+    a.parse("nJ")
+    b.parse("kHz")
+    a.save()
+    b.save()  # the last writer merges instead of replacing
+    _, table = _table(cache)
+    assert {"nJ", "kHz"} <= set(table["units"])
+
+
+def test_the_cache_folder_is_the_platforms(monkeypatch):
+    import platformdirs
+
+    from speccheck.reading import unit_table
+
+    monkeypatch.delenv("SPECCHECK_CACHE_DIR", raising=False)
+    monkeypatch.delenv("SPECCHECK_NO_CACHE", raising=False)
+    assert str(unit_table.path()).startswith(platformdirs.user_cache_dir("speccheck", appauthor=False))

@@ -113,7 +113,7 @@ def _fail_level(args, config) -> str:
 def _check(args, stdout, stderr, stdin=None) -> int:
     from speccheck.reading import config as cfg
     from speccheck.reading import suppress
-    from speccheck.checking.document import DEFAULT_TOLERANCE, Checker, Options
+    from speccheck.checking.document import Checker, Options
     from speccheck.formats import OutputOptions, writer
     from speccheck.reading.units import UnitSystem
 
@@ -137,12 +137,11 @@ def _check(args, stdout, stderr, stdin=None) -> int:
             stderr.write(f"speccheck: cannot write {files.printable(args.output)}: {exc}\n")
             return 2
     units = UnitSystem()
-    tolerance = config.tolerance if config.tolerance is not None else DEFAULT_TOLERANCE
     if args.max_depth > MAX_DEPTH:
         stderr.write(f"speccheck: --max-depth {args.max_depth} is more than speccheck can read; using {MAX_DEPTH}\n")
     limits = Limits(max_bytes=args.max_file_size, max_nodes=args.max_nodes, max_depth=args.max_depth)
     reader = files.DataReader()
-    checker = Checker(units, Options(limits=limits, default_tolerance=tolerance), read=reader)
+    checker = Checker(units, Options(limits=limits, tolerance=config.tolerance, tolerances=config.tolerances), read=reader)
     results: list[FileResult] = []
     io_failure = bool(expansion.unmatched)
     for name, path in expansion.files:
@@ -229,6 +228,15 @@ def _explain(rule_id: str, stdout, stderr) -> int:
         source = r.source or source_of(r.explanation)
         if source:
             stdout.write(f"\nSource: {source}\n")
+    if r.id == "relation-conflict":
+        from speccheck.physics.quantities import QUANTITIES
+        from speccheck.physics.stages import PARAM_TOLERANCES
+
+        stdout.write("\nDefault tolerances of plain values (a spec's defaults or the configuration override them):\n")
+        for q in QUANTITIES:
+            stdout.write(f"  {q.name:<30} {q.tolerance * 100:g}%  {q.tolerance_why}\n")
+        for name, (tol, why) in PARAM_TOLERANCES.items():
+            stdout.write(f"  {name:<30} {tol * 100:g}%  {why}  (stage parameter)\n")
     if r.id == "stage-parameter":
         from speccheck.physics.stages import STAGE_KINDS
 

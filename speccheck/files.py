@@ -15,7 +15,7 @@ import sys
 from pathlib import Path
 
 from speccheck.formats import MACHINE_FORMATS, inert
-from speccheck.reading.config import compile_pattern
+from speccheck.reading.patterns import compile_pattern
 from speccheck.reading.disk import kind_of, read_regular
 from speccheck.records.findings import FileResult, Finding
 

@@ -124,7 +124,7 @@ def test_stated_derived_and_conflict_cells_differ_in_colour_and_in_text(tmp_path
     assert conflict["data-status"] == "conflict" and conflict["title"].startswith("conflict")
     for status in ("stated", "derived", "conflict"):  # spoken to screen readers, not only coloured
         assert f"{status}: " in page.plain
-    assert "≠ implied 18.12 … 22.11 µJ" in page.plain
+    assert "≠ implied 19.4 … 20.6 µJ" in page.plain
     assert "suspect: laser.pulse_energy" in page.plain
 
 

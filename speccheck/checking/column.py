@@ -39,7 +39,8 @@ class BlockCheck:
         self.name = name  # the column: "laser", or an operating point's name
         self.block = block
         self.paths = paths or {key: (name, key) for key in block}  # spec key -> document path
-        self.tolerance = tolerance
+        self.tolerances = tolerance  # Tolerances (per quantity) or one number
+        self.tolerance = getattr(tolerance, "fallback", tolerance)  # one number, for measured widths
         self.report = report
         self.stated: dict[str, Stated] = {}
         self.keys: dict[str, str] = {}  # quantity -> spec key it was stated under
@@ -140,7 +141,7 @@ class BlockCheck:
             if key in CATEGORICAL or key not in KEYS:
                 continue
             try:
-                stated = self.c.values.parse(key, raw, self.tolerance)
+                stated = self.c.values.parse(key, raw, self.tolerances)
             except ValueProblem as p:
                 self.report.add(p.rule, f"{self.name}.{p.message}", self.paths[key],
                                 quantities=(self.dotted(key),))

@@ -10,7 +10,8 @@ column of quantities and ``walker`` the beam path.
 
 from __future__ import annotations
 
-from dataclasses import dataclass
+from dataclasses import dataclass, field
+from typing import Mapping
 
 from speccheck.checking.column import KEYS, BlockCheck
 from speccheck.checking.report import Report
@@ -20,7 +21,7 @@ from speccheck.physics.relations import Context
 from speccheck.reading.schema import validate
 from speccheck.physics.shapes import BEAM_PROFILES, DEFAULT_SHAPE, PULSE_SHAPES
 from speccheck.reading.units import UnitSystem
-from speccheck.reading.values import ValueParser, ValueProblem, parse_tolerance
+from speccheck.reading.values import Tolerances, ValueParser, ValueProblem, parse_tolerance, tolerance_names
 
 DEFAULT_TOLERANCE = 0.05
 
@@ -28,7 +29,8 @@ DEFAULT_TOLERANCE = 0.05
 @dataclass(frozen=True)
 class Options:
     limits: Limits = Limits()
-    default_tolerance: float = DEFAULT_TOLERANCE
+    tolerance: float | None = None  # the project configuration's global tolerance
+    tolerances: Mapping[str, float] = field(default_factory=dict)  # …and its per-quantity ones
 
 
 class Checker:
@@ -152,15 +154,27 @@ class Checker:
                        f"{check.show(limit.quantity, bound, limit.unit)} (laser.{key}: {limit.text}, line {line})",
                        ("operating_points", i, key), quantities=(f"{name}.{key}", f"laser.{key}"))
 
-    def _tolerance(self, data: dict, report: Report) -> float:
-        defaults = data.get("defaults")
-        if not isinstance(defaults, dict) or "tolerance" not in defaults:
-            return self.options.default_tolerance
-        try:
-            return parse_tolerance(defaults["tolerance"])
-        except ValueProblem as p:
-            report.add(p.rule, f"defaults.tolerance: {p.message}", ("defaults", "tolerance"))
-            return self.options.default_tolerance
+    def _tolerance(self, data: dict, report: Report) -> Tolerances:
+        """The tolerances of this spec: its ``defaults``, then the configuration's, then the table."""
+        defaults = data.get("defaults") if isinstance(data.get("defaults"), dict) else {}
+        spec_global = None
+        if "tolerance" in defaults:
+            try:
+                spec_global = parse_tolerance(defaults["tolerance"])
+            except ValueProblem as p:
+                report.add(p.rule, f"defaults.tolerance: {p.message}", ("defaults", "tolerance"))
+        spec: dict[str, float] = {}
+        per = defaults.get("tolerances")
+        if isinstance(per, dict):
+            known = tolerance_names()
+            for name, raw in per.items():
+                if name not in known:
+                    continue  # the schema names the known ones, with "did you mean"
+                try:
+                    spec[name] = parse_tolerance(raw)
+                except ValueProblem as p:
+                    report.add(p.rule, f"defaults.tolerances.{name}: {p.message}", ("defaults", "tolerances", name))
+        return Tolerances(spec, self.options.tolerances, spec_global, self.options.tolerance)
 
     def context(self, shape: str, profile: str) -> Context:
         k = self.units.constants

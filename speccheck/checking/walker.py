@@ -22,7 +22,7 @@ from speccheck.checking.stage_checks import CHECKS, Visit, checks_of, interval
 from speccheck.physics import hazards, materials
 from speccheck.physics.quantities import BY_NAME
 from speccheck.physics.shapes import DEFAULT_SHAPE, PULSE_SHAPES
-from speccheck.physics.stages import CARRIED, STAGE_KINDS, Beam, StageContext, intrinsic_gdd, point, scaled, typical
+from speccheck.physics.stages import CARRIED, PARAM_TOLERANCES, STAGE_KINDS, Beam, StageContext, intrinsic_gdd, point, scaled, typical
 from speccheck.reading.units import choose_unit, format_quantity
 from speccheck.reading.values import Stated, ValueProblem
 from speccheck.records.findings import Cell
@@ -55,7 +55,7 @@ class PathWalk:
     def __init__(self, checker, data: dict, tolerance: float, report, sheet: dict) -> None:
         self.c = checker
         self.data = data
-        self.tolerance = tolerance
+        self.tolerance = tolerance  # Tolerances: per quantity and stage parameter
         self.report = report
         self.sheet = sheet
         laser = data.get("laser") if isinstance(data.get("laser"), dict) else {}
@@ -113,7 +113,7 @@ class PathWalk:
                 out[p.name] = raw
                 continue
             try:
-                s = self.c.values.parse_as(label, raw, p.dimension, self.tolerance,
+                s = self.c.values.parse_as(label, raw, p.dimension, self.param_tolerance(p.name),
                                            signed=p.dimension in ("s^2", "s^3"))
             except ValueProblem as e:
                 self.report.add(e.rule, e.message, at + (p.name,), quantities=(label,))
@@ -187,6 +187,11 @@ class PathWalk:
         if beam.net_tod != (0.0, 0.0, 0.0):
             cells["net_tod"] = Cell("derived", beam.net_tod[0], beam.net_tod[2], beam.net_tod[1], "s^3", "fs^3")
         return cells
+
+    def param_tolerance(self, name: str) -> float:
+        builtin = PARAM_TOLERANCES.get(name, (0.05, ""))[0]
+        t = self.tolerance
+        return t.of(name, builtin) if hasattr(t, "of") else t
 
     def run_check(self, check, visit: Visit) -> None:
         try:
@@ -280,7 +285,9 @@ class PathWalk:
             spec = spec if isinstance(spec, dict) else {}
             if "fraction" in spec:
                 try:
-                    s = self.c.values.parse_as(f"{name}.{branch}.fraction", spec["fraction"], "1", self.tolerance)
+                    share = next((p.name for p in kind.params if p.fraction), "")
+                    s = self.c.values.parse_as(f"{name}.{branch}.fraction", spec["fraction"], "1",
+                                               self.param_tolerance(share))
                     shares[k] = (s.low, s.typical, s.high)
                     stated.append(s)
                 except ValueProblem as e:

@@ -295,6 +295,27 @@ def _splitter_shares(p) -> tuple[Value, Value]:
     return ratio, (1.0 - ratio[2], 1.0 - ratio[1], 1.0 - ratio[0])
 
 
+# The relative tolerance of a plain stage parameter ("3 mm") when the spec and the project
+# configuration give none: parameter -> (tolerance, why).
+PARAM_TOLERANCES: dict[str, tuple[float, str]] = {
+    "transmission": (0.01, "a coated optic's or a measured transmission: to about 1% (common practice)"),
+    "efficiency": (0.10, "a conversion efficiency: about 10% (common practice)"),
+    "ratio": (0.02, "a beam splitter's ratio: to about 2% (common practice)"),
+    "thickness": (0.01, "a polished optic's thickness: to about 1% (common practice)"),
+    "focal_length": (0.01, "a catalogue lens: about 1% (common practice)"),
+    "gdd": (0.05, "a designed or measured GDD: about 5% (common practice)"),
+    "tod": (0.10, "a third-order dispersion: about 10% (common practice)"),
+    "magnification": (0.01, "a telescope's focal-length ratio: about 1% (common practice)"),
+    "divide_by": (0.0, "a whole number of pulses: exact"),
+    "order": (0.0, "a harmonic order: exact"),
+    "gain": (0.05, "an amplifier's gain: about 5% (common practice)"),
+    "output_energy": (0.05, "as a pulse energy: about 5% (common practice)"),
+    "output_power": (0.03, "as an average power: about 3% (common practice)"),
+    "signal_wavelength": (0.01, "as a wavelength: about 1% (common practice)"),
+    "idler_wavelength": (0.01, "as a wavelength: about 1% (common practice)"),
+}
+
+
 STAGE_KINDS: dict[str, StageKind] = {k.name: k for k in (
     StageKind("optic", (_T,), _optic, "a mirror, lens or window that loses power (transmission)"),
     StageKind("attenuator", (Param("transmission", "1", required=True, fraction=True),), _optic,
@@ -332,3 +353,8 @@ STAGE_KINDS: dict[str, StageKind] = {k.name: k for k in (
               "focusing optic: 1/e² spot diameter 4 M² λ f / (π D)",
               "Gaussian-beam optics (paraxial)", checks=("measured-spot", "focus-spot")),
 )}
+
+_untoleranced = sorted({p.name for k in STAGE_KINDS.values() for p in k.params if p.dimension not in
+                        ("text", "material_name")} - set(PARAM_TOLERANCES))
+if _untoleranced:  # pragma: no cover - table sanity
+    raise ValueError(f"stage parameters without a default tolerance: {', '.join(_untoleranced)}")

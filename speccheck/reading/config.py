@@ -31,17 +31,18 @@ import os
 import re
 import tomllib
 from dataclasses import dataclass, field
-from pathlib import Path, PurePosixPath
+from pathlib import Path
 from types import MappingProxyType
 from typing import Iterable, Mapping
 
 from speccheck.reading.disk import read_regular
+from speccheck.reading.patterns import compile_pattern, pattern_problem
 from speccheck.records.findings import SEVERITIES, FileResult
 from speccheck.records.rules import RULES
 
 CONFIG_FILE = "speccheck.toml"
 PYPROJECT = "pyproject.toml"
-KEYS = ("tolerance", "disable", "severity", "include", "exclude", "fail-on")
+KEYS = ("tolerance", "tolerances", "disable", "severity", "include", "exclude", "fail-on")
 FAIL_LEVELS = SEVERITIES  # "error" | "warning" | "note"
 MAX_CONFIG_BYTES = 1024 * 1024  # a configuration file larger than this is refused
 
@@ -67,6 +68,7 @@ class Config:
     path: str | None = None  # the file it was read from (None: the built-in defaults)
     root: str = "."  # the folder that include/exclude patterns are relative to
     tolerance: float | None = None
+    tolerances: Mapping[str, float] = field(default_factory=lambda: MappingProxyType({}))  # per quantity
     disable: frozenset[str] = frozenset()
     severity: Mapping[str, str] = field(default_factory=lambda: MappingProxyType({}))  # rule -> level
     include: tuple[str, ...] = ()
@@ -198,6 +200,23 @@ def parse(text: str, path: str = CONFIG_FILE, *, pyproject: bool = False, root: 
             tolerance = parse_tolerance(section["tolerance"])
         except ValueProblem as p:
             raise fail("tolerance", p.message) from None
+    tolerances: dict[str, float] = {}
+    raw_tolerances = section.get("tolerances", {})
+    if not isinstance(raw_tolerances, dict):
+        raise fail("tolerances", f"must be a table of quantity = tolerance, got {_kind(raw_tolerances)}")
+    if raw_tolerances:
+        from speccheck.reading.values import ValueProblem, parse_tolerance, tolerance_names
+
+        known = tolerance_names()
+        table = (table_name + ".tolerances") if pyproject else "tolerances"
+        for name, raw in raw_tolerances.items():
+            if name not in known:
+                raise ConfigError(path, f"no quantity or stage parameter is called {name!r}{_guess(name, known)}",
+                                  prefix + "tolerances." + name, _line_of(text, name, table))
+            try:
+                tolerances[name] = parse_tolerance(raw)
+            except ValueProblem as p:
+                raise ConfigError(path, p.message, prefix + "tolerances." + name, _line_of(text, name, table)) from None
 
     def rule_list(key: str) -> tuple[str, ...]:
         value = section.get(key, [])
@@ -249,7 +268,7 @@ def parse(text: str, path: str = CONFIG_FILE, *, pyproject: bool = False, root: 
         shown = repr(fail_on) if isinstance(fail_on, str) else _kind(fail_on)
         raise fail("fail-on", f"must be one of {', '.join(FAIL_LEVELS)}, got {shown}")
 
-    return Config(path, root, tolerance, frozenset(disable), MappingProxyType(severity), include, exclude,
+    return Config(path, root, tolerance, MappingProxyType(tolerances), frozenset(disable), MappingProxyType(severity), include, exclude,
                   fail_on)
 
 
@@ -278,69 +297,6 @@ def failing(results: Iterable[FileResult], fail_on: str) -> bool:
     """Whether any finding is at ``fail_on`` level or more severe."""
     worst = SEVERITIES.index(fail_on)
     return any(SEVERITIES.index(f.severity) <= worst for r in results for f in r.findings)
-
-
-# ------------------------------------------------------------------ include / exclude
-def pattern_problem(pattern: str) -> str | None:
-    if not pattern.strip():
-        return "a pattern must not be empty"
-    if pattern.startswith("/") or re.match(r"^[A-Za-z]:[\\/]", pattern):
-        return "patterns are relative to the configuration file's folder, not absolute"
-    if ".." in PurePosixPath(pattern).parts:
-        return "patterns cannot reach outside the configuration file's folder ('..')"
-    try:
-        compile_pattern(pattern)
-    except re.error as exc:  # "[]", "[!]", "[z-a]": a character class that is empty or backwards
-        return f"not a valid glob pattern (its character class: {exc.msg})"
-    return None
-
-
-def _segment(part: str) -> str:
-    out, i = [], 0
-    while i < len(part):
-        ch = part[i]
-        if ch == "*":
-            out.append("[^/]*")
-        elif ch == "?":
-            out.append("[^/]")
-        elif ch == "[":
-            end = part.find("]", i + 2 if part[i + 1:i + 2] in ("!", "^") else i + 1)
-            if end < 0:
-                out.append(re.escape(ch))
-            else:
-                body = part[i + 1:end]
-                if body[:1] in ("!", "^"):
-                    body = "^" + body[1:]
-                out.append("[" + body.replace("\\", "\\\\") + "]")
-                i = end
-        else:
-            out.append(re.escape(ch))
-        i += 1
-    return "".join(out)
-
-
-def compile_pattern(pattern: str) -> re.Pattern:
-    """A glob pattern as a regular expression over '/'-separated relative paths.
-
-    ``*`` and ``?`` stay inside one path segment, ``**`` spans any number of
-    segments (also none), ``[abc]`` / ``[!abc]`` are character classes.  A
-    pattern without '/' matches a file or folder name at any depth.
-    """
-    pattern = pattern.replace("\\", "/").strip()
-    while pattern.startswith("./"):
-        pattern = pattern[2:]
-    pattern = pattern.rstrip("/")
-    parts = pattern.split("/")
-    if len(parts) == 1 and parts[0] != "**":
-        return re.compile(rf"(?:.*/)?{_segment(parts[0])}")
-    out = []
-    for i, part in enumerate(parts):
-        last = i == len(parts) - 1
-        if part == "**":
-            out.append(".*" if last else "(?:[^/]+/)*")
-        else:
-            out.append(_segment(part) + ("" if last else "/"))
-    return re.compile("".join(out))
 
 
 def _relative(path: str, root: str) -> str | None:

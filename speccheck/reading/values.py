@@ -17,7 +17,8 @@ from __future__ import annotations
 
 import math
 import re
-from dataclasses import dataclass
+from dataclasses import dataclass, field
+from typing import Mapping
 
 from speccheck.physics.quantities import ALIASES, BY_NAME
 from speccheck.reading.units import DIMENSION_NAMES, AngularUnit, UnitError, UnitSystem
@@ -72,6 +73,62 @@ def parse_tolerance(raw, default: float = 0.05) -> float:
     if not (math.isfinite(value) and 0.0 <= value < 1.0):
         raise ValueProblem("invalid-value", f"tolerance must be between 0% and 100%, got {raw!r}")
     return value
+
+
+def _alias_of() -> dict[str, str]:
+    return {q: key for key, forms in ALIASES.items() for q in forms.values()}
+
+
+_ALIAS_OF = _alias_of()  # quantity -> the spec key it can be stated under ("spectral_bandwidth")
+
+
+@dataclass(frozen=True)
+class Tolerances:
+    """The relative tolerance of a plain stated value, by precedence (strongest first):
+
+    1. the spec's per-quantity setting (``defaults: {tolerances: {repetition_rate: 0.01%}}``);
+    2. the project configuration's per-quantity setting (``[tolerances]``);
+    3. the spec's global ``defaults: {tolerance: …}``;
+    4. the configuration's global ``tolerance``;
+    5. the built-in table (``Quantity.tolerance``, ``stages.PARAM_TOLERANCES``).
+
+    Names are quantities, spec keys (``spectral_bandwidth`` covers all its forms) or stage
+    parameters.  Bounds (``>=``, ``{min, max}``) are exact and never take a tolerance."""
+
+    spec: Mapping[str, float] = field(default_factory=dict)
+    config: Mapping[str, float] = field(default_factory=dict)
+    spec_global: float | None = None
+    config_global: float | None = None
+
+    def of(self, name: str, builtin: float) -> float:
+        names = (name, _ALIAS_OF.get(name, name))
+        for table in (self.spec, self.config):
+            for n in names:
+                if n in table:
+                    return table[n]
+        for value in (self.spec_global, self.config_global):
+            if value is not None:
+                return value
+        return builtin
+
+    def quantity(self, name: str) -> float:
+        return self.of(name, BY_NAME[name].tolerance if name in BY_NAME else 0.05)
+
+    @property
+    def fallback(self) -> float:
+        """One number for values of no quantity (measured widths): the global setting or 5%."""
+        return next((v for v in (self.spec_global, self.config_global) if v is not None), 0.05)
+
+
+def tolerance_names() -> frozenset[str]:
+    """Every name a per-quantity tolerance may be given for."""
+    from speccheck.physics.stages import PARAM_TOLERANCES
+
+    return frozenset(BY_NAME) | frozenset(ALIASES) | frozenset(PARAM_TOLERANCES)
+
+
+def _tolerance_of(tolerance, quantity: str) -> float:
+    return tolerance.quantity(quantity) if isinstance(tolerance, Tolerances) else tolerance
 
 
 class ValueParser:
@@ -167,6 +224,7 @@ class ValueParser:
         first = next(iter(parsed.values()))
         text = ", ".join(f"{k}: {v.text}" for k, v in parsed.items())
         if set(parsed) == {"typical"}:
+            tolerance = _tolerance_of(tolerance, first.quantity)
             t = parsed["typical"].typical
             _finite_spread(key, t * (1 + tolerance), text)
             return Stated(first.quantity, t * (1 - tolerance), t * (1 + tolerance), t, first.unit, text)
@@ -177,8 +235,9 @@ class ValueParser:
             raise ValueProblem("empty-interval", f"{key}: min ≤ typical ≤ max does not hold in {{{text}}}")
         return Stated(first.quantity, low, high, typical, first.unit, "{" + text + "}")
 
-    def _from_number(self, key, number: float, unit: str | None, tolerance: float, text: str) -> Stated:
+    def _from_number(self, key, number: float, unit: str | None, tolerance, text: str) -> Stated:
         quantity, si, unit_text = self._to_si(key, number, unit, text)
+        tolerance = _tolerance_of(tolerance, quantity)
         _finite_spread(key, abs(si) * (1 + tolerance), text)
         if key in self._signed:
             low, high = sorted((si * (1 - tolerance), si * (1 + tolerance)))

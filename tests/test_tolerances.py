@@ -1,0 +1,113 @@
+"""Default tolerances by quantity, their precedence, and bounds that stay exact."""
+
+import io
+import json
+
+import pytest
+
+from speccheck.cli import run
+from speccheck.physics.quantities import QUANTITIES
+from speccheck.physics.stages import PARAM_TOLERANCES, STAGE_KINDS
+
+
+def cell(result, quantity, column="laser"):
+    return result.sheet[column][quantity]
+
+
+def test_every_quantity_and_stage_parameter_has_a_default_tolerance_and_a_reason():
+    for q in QUANTITIES:
+        assert 0.0 <= q.tolerance < 0.5 and q.tolerance_why, q.name
+    numeric = {p.name for k in STAGE_KINDS.values() for p in k.params if p.dimension not in ("text", "material_name")}
+    assert numeric <= set(PARAM_TOLERANCES)
+    assert all(why for _, why in PARAM_TOLERANCES.values())
+
+
+def test_a_rate_is_known_far_better_than_a_power(check):
+    # ">= 45 µJ at 1 MHz" needs 45 W; "at most 43 W" then needs a rate 4.4% below the one stated.
+    # A single 5% default let that through; a repetition rate is known to 0.01% (common practice).
+    result = check("""
+        laser:
+          repetition_rate: 1 MHz
+          pulse_energy: ">= 45 µJ"
+          average_power: "<= 43 W"
+        """)
+    assert [f.rule for f in result.findings if f.severity == "error"] == ["relation-conflict"]
+
+
+def test_bounds_are_exact_whatever_the_tolerances(check):
+    # 45 µJ × 1 MHz = 45 W exactly: a bound meets a bound at its edge, and no tolerance widens them
+    ok = check("""
+        defaults: {tolerance: 20%}
+        laser:
+          repetition_rate: {min: 1 MHz, max: 1 MHz}
+          pulse_energy: ">= 45 µJ"
+          average_power: "<= 45.0001 W"
+        """)
+    assert not [f for f in ok.findings if f.severity == "error"]
+    bad = check("""
+        defaults: {tolerance: 20%}
+        laser:
+          repetition_rate: {min: 1 MHz, max: 1 MHz}
+          pulse_energy: ">= 45 µJ"
+          average_power: "<= 44.99 W"
+        """)
+    assert [f.rule for f in bad.findings if f.severity == "error"] == ["relation-conflict"]
+
+
+@pytest.mark.parametrize("defaults, expected", [
+    ("", 0.03),  # the built-in table: an average power to 3%
+    ("defaults: {tolerance: 7%}", 0.07),  # the spec's global setting beats the table
+    ("defaults: {tolerance: 7%, tolerances: {average_power: 1%}}", 0.01),  # its per-quantity one beats both
+])
+def test_the_spec_sets_tolerances_by_quantity_before_globally(check, defaults, expected):
+    result = check(f"{defaults}\nlaser:\n  average_power: 2 W\n")
+    p = cell(result, "average_power")
+    assert p.low == pytest.approx(2 * (1 - expected)) and p.high == pytest.approx(2 * (1 + expected))
+
+
+def _power_interval(tmp_path, spec_defaults: str, config: str) -> tuple[float, float]:
+    (tmp_path / "speccheck.toml").write_text(config, encoding="utf-8")
+    (tmp_path / "s.yaml").write_text(f"spec_version: 1\n{spec_defaults}\nlaser:\n  average_power: 2 W\n"
+                                     "  spectral_bandwidth: 10 nm\n", encoding="utf-8")
+    out = io.StringIO()
+    run(["check", "--config", str(tmp_path / "speccheck.toml"), "--format", "json", str(tmp_path / "s.yaml")],
+        out, io.StringIO())
+    sheet = json.loads(out.getvalue())["files"][0]["sheet"]["laser"]
+    return sheet["average_power"]["high"] / 2 - 1, sheet["spectral_bandwidth_wavelength"]["high"] / 10e-9 - 1
+
+
+@pytest.mark.parametrize("spec_defaults, config, power, bandwidth", [
+    # 5. the table
+    ("", "", 0.03, 0.05),
+    # 4. the configuration's global tolerance beats the table
+    ("", 'tolerance = "2%"\n', 0.02, 0.02),
+    # 3. the spec's global tolerance beats the configuration's
+    ("defaults: {tolerance: 4%}", 'tolerance = "2%"\n', 0.04, 0.04),
+    # 2. the configuration's per-quantity setting beats both globals (an alias key covers its forms)
+    ("defaults: {tolerance: 4%}", 'tolerance = "2%"\n[tolerances]\naverage_power = "1%"\nspectral_bandwidth = "8%"\n',
+     0.01, 0.08),
+    # 1. the spec's per-quantity setting beats everything
+    ("defaults: {tolerances: {average_power: 0.5%}}", '[tolerances]\naverage_power = "1%"\n', 0.005, 0.05),
+])
+def test_the_precedence_of_tolerances(tmp_path, spec_defaults, config, power, bandwidth):
+    got = _power_interval(tmp_path, spec_defaults, config)
+    assert got == pytest.approx((power, bandwidth))
+
+
+def test_a_stage_parameter_takes_its_own_default_tolerance(check):
+    result = check("""
+        laser: {wavelength: 800 nm, pulse_energy: 1 mJ}
+        path:
+          - {name: lens, kind: optic, transmission: 90%}
+        """)
+    e = cell(result, "pulse_energy", "lens")  # energy to 5%, a transmission to 1%
+    assert e.high == pytest.approx(1e-3 * 1.05 * 0.9 * 1.01)
+
+
+def test_an_unknown_name_in_the_configurations_tolerances_is_a_mistake(tmp_path):
+    (tmp_path / "speccheck.toml").write_text('[tolerances]\nrepetition_rat = "0.1%"\n', encoding="utf-8")
+    (tmp_path / "s.yaml").write_text("spec_version: 1\nlaser: {wavelength: 800 nm}\n", encoding="utf-8")
+    err = io.StringIO()
+    assert run(["check", "--config", str(tmp_path / "speccheck.toml"), str(tmp_path / "s.yaml")],
+               io.StringIO(), err) == 2
+    assert "repetition_rate" in err.getvalue()  # did you mean

@@ -111,3 +111,50 @@ def test_an_unknown_name_in_the_configurations_tolerances_is_a_mistake(tmp_path)
     assert run(["check", "--config", str(tmp_path / "speccheck.toml"), str(tmp_path / "s.yaml")],
                io.StringIO(), err) == 2
     assert "repetition_rate" in err.getvalue()  # did you mean
+
+
+# -- typical values must agree
+
+
+def typical_warnings(result):
+    return [f for f in result.findings if f.rule == "typical-values-disagree"]
+
+
+def test_typical_values_that_break_a_relation_are_a_warning_naming_the_numbers(check):
+    # 20 W at 1 MHz is 20 µJ (E = P / f, by hand); 21 µJ is within 5% of it, so the intervals agree
+    result = check("laser: {repetition_rate: 1 MHz, pulse_energy: 21 µJ, average_power: 20 W}\n")
+    assert not [f for f in result.findings if f.severity == "error"]
+    (w,) = typical_warnings(result)
+    assert w.severity == "warning" and "20 µJ" in w.message and "21 µJ" in w.message and "+5%" in w.message
+    assert not typical_warnings(check("laser: {repetition_rate: 1 MHz, pulse_energy: 20.1 µJ, average_power: 20 W}\n"))
+
+
+def test_typical_values_below_the_transform_limit_are_a_warning(check):
+    # 180 fs × c·6 nm/(1040 nm)² = 0.299 < 0.315 for sech² (published pulse-shape tables: 0.3148)
+    result = check("laser: {wavelength: 1040 nm, pulse_duration: 180 fs, spectral_bandwidth: 6 nm, pulse_shape: sech2}\n")
+    (w,) = typical_warnings(result)
+    assert "0.2993" in w.message and "0.3148" in w.message
+    assert not [f for f in result.findings if f.rule == "below-transform-limit"]  # the intervals agree
+
+
+def test_a_typical_value_beyond_a_stated_bound_is_a_warning(check):
+    result = check("laser: {repetition_rate: 1 MHz, pulse_energy: 20 µJ, average_power: '<= 19.5 W'}\n")
+    (w,) = typical_warnings(result)
+    assert "20 W" in w.message and "<= 19.5 W" in w.message
+
+
+def test_the_margin_is_a_setting(check):
+    text = "laser: {repetition_rate: 1 MHz, pulse_energy: 21 µJ, average_power: 20 W}\n"
+    assert not typical_warnings(check("defaults: {nominal_margin: 6%}\n" + text))
+    assert typical_warnings(check("defaults: {nominal_margin: 4%}\n" + text))
+
+
+def test_the_examples_and_the_starters_have_no_such_warning(check):
+    from pathlib import Path
+
+    from speccheck.starter import KINDS, starter
+
+    root = Path(__file__).resolve().parent.parent / "example_specs"
+    texts = [p.read_text(encoding="utf-8") for p in root.glob("*.yaml")] + [starter(k, "s.yaml", None) for k in KINDS]
+    for text in texts:
+        assert not typical_warnings(check(text))

@@ -13,7 +13,7 @@ from __future__ import annotations
 import math
 from typing import TYPE_CHECKING
 
-from speccheck.checking import cells, column_limits, conflicts, measured_data
+from speccheck.checking import cells, column_limits, conflicts, measured_data, nominal
 from speccheck.checking.engine import Network, diagnose, evaluate, network_for
 from speccheck.checking.logspace import ln
 from speccheck.checking.wording import format_ratio, join
@@ -50,6 +50,10 @@ class BlockCheck:
         self.notes = notes
 
     # ------------------------------------------------------------- helpers
+    def tolerance_of(self, quantity: str) -> float:
+        t = self.tolerances
+        return t.quantity(quantity) if hasattr(t, "quantity") else t
+
     def dotted(self, quantity: str) -> str:
         return f"{self.name}.{quantity}"
 
@@ -121,6 +125,7 @@ class BlockCheck:
         self.fixed = frozenset(fixed | {idx[q] for q in self.measured})
         self.diagnosis = diagnose(self.net, self.log_stated, self.fixed)
         conflicts.report(self)
+        nominal.report(self, getattr(self.tolerances, "margin", nominal.DEFAULT_MARGIN))
         column = cells.build(self)
         column_limits.report_limits(self, column)
         column_limits.report_bandwidth(self, column)

@@ -174,7 +174,13 @@ class Checker:
                     spec[name] = parse_tolerance(raw)
                 except ValueProblem as p:
                     report.add(p.rule, f"defaults.tolerances.{name}: {p.message}", ("defaults", "tolerances", name))
-        return Tolerances(spec, self.options.tolerances, spec_global, self.options.tolerance)
+        margin = 0.01
+        if "nominal_margin" in defaults:
+            try:
+                margin = parse_tolerance(defaults["nominal_margin"])
+            except ValueProblem as p:
+                report.add(p.rule, f"defaults.nominal_margin: {p.message}", ("defaults", "nominal_margin"))
+        return Tolerances(spec, self.options.tolerances, spec_global, self.options.tolerance, margin)
 
     def context(self, shape: str, profile: str) -> Context:
         k = self.units.constants

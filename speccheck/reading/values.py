@@ -99,6 +99,7 @@ class Tolerances:
     config: Mapping[str, float] = field(default_factory=dict)
     spec_global: float | None = None
     config_global: float | None = None
+    margin: float = 0.01  # how far typical values may disagree before a warning (checking.nominal)
 
     def of(self, name: str, builtin: float) -> float:
         names = (name, _ALIAS_OF.get(name, name))

@@ -107,6 +107,14 @@ _RULES = (
          "compared with the stated spectral_bandwidth and autocorrelation_width, with the tolerance.",
          "spectral_bandwidth: 8 nm   # spectrum.csv has 12 nm", "spectral_bandwidth: 12 nm"),
     # ---- the beam path
+    Rule("typical-values-disagree", "warning", "stated values that agree only at the edges of their tolerances",
+         "A maker claims its typical numbers together, so they are checked against each other as well as "
+         "the intervals: every relation whose values all have a typical number must hold within a margin "
+         "(1% by default; defaults: {nominal_margin: …}), every limit must hold for the typical values, and "
+         "a value stated only as a bound must hold the typical number the others imply. The intervals may "
+         "agree because each tolerance stretches far enough; the typical values say whether the claim does.",
+         "repetition_rate: 1 MHz\npulse_energy: 21 µJ\naverage_power: 20 W",
+         "repetition_rate: 1 MHz\npulse_energy: 20 µJ\naverage_power: 20 W"),
     Rule("bandwidth-exceeds-carrier", "error", "a spectral bandwidth larger than its carrier frequency",
          "The FWHM bandwidth Δν of an optical pulse is centred on its carrier frequency ν0 = c/λ; a Δν "
          "larger than ν0 would put half the spectrum at negative frequencies. Usually a unit is wrong "

@@ -108,3 +108,48 @@ def test_an_ambiguous_conflict_lists_candidates_with_their_implied_values(check)
     assert "implies 200 mW" in finding.message or "implies 0.2 W" in finding.message
     # A factor of 10 is no SI-prefix step (those are 10^3): no cause is claimed.
     assert "prefix" not in finding.message and finding.cause is None
+
+
+@pytest.mark.parametrize("duration, named", [("141.4 fs", True), ("130 fs", False)])
+def test_a_cause_is_named_only_when_the_ratio_matches_its_factor_within_the_tolerances(check, duration, named):
+    # E = 10 µJ and P_pk = 94 MW for a Gaussian pulse give τ = 0.9394 E / P_pk = 99.9 fs (relation
+    # table, by hand); the autocorrelation width of a Gaussian is √2 τ (published pulse-shape tables).
+    # With every value known to 1 %, a ratio of 1.30 is not the factor 1.414 (8 % away), 1.414 is.
+    result = check(f"""
+        defaults: {{tolerance: 1%}}
+        laser:
+          pulse_shape: gaussian
+          pulse_energy: 10 µJ
+          peak_power: 94 MW
+          pulse_duration: {duration}
+        """)
+    (finding,) = [f for f in result.findings if f.rule == "relation-conflict"]
+    assert (finding.cause == "autocorrelation-as-duration") is named, finding.message
+
+
+def test_the_one_candidate_a_catalogued_mistake_explains_is_the_likely_suspect(tmp_path):
+    import io
+    import json
+
+    from speccheck.cli import run
+
+    spec = tmp_path / "s.yaml"
+    spec.write_text("spec_version: 1\ndefaults: {tolerance: 1%}\nlaser:\n  pulse_shape: gaussian\n"
+                    "  pulse_energy: 10 µJ\n  peak_power: 94 MW\n  pulse_duration: 141.4 fs\n", encoding="utf-8")
+    out = io.StringIO()
+    run(["check", "--no-config", "--format", "json", str(spec)], out, io.StringIO())
+    (f,) = [f for f in json.loads(out.getvalue())["files"][0]["findings"] if f["rule"] == "relation-conflict"]
+    assert f["likely"] is True and f["suspect"] == "laser.pulse_duration" and f["line"] == 7
+    assert set(f["candidates"]) == {"laser.pulse_energy", "laser.peak_power", "laser.pulse_duration"}
+    assert "likely" in f["message"]
+
+
+def test_a_limit_carried_along_the_path_is_reported_once_where_it_arose(check):
+    result = check("""
+        laser: {wavelength: 800 nm, pulse_duration: 10 fs, spectral_bandwidth: 10 nm, pulse_energy: 1 mJ}
+        path:
+          - {name: m, kind: optic, transmission: 90%}
+          - {name: g, kind: dispersion, gdd: 100 fs^2}
+        """)
+    assert [(f.rule, f.line) for f in result.findings if f.rule == "below-transform-limit"] == [
+        ("below-transform-limit", 2)]

@@ -48,6 +48,7 @@ class BlockCheck:
         # values carried from the column before (a beam path): never suspected, replaced by a measurement
         self.inherited: dict[str, Stated] = dict(inherited or {})
         self.notes = notes
+        self.before: dict = {}  # the cells of the column before, on a beam path
 
     # ------------------------------------------------------------- helpers
     def tolerance_of(self, quantity: str) -> float:

@@ -14,6 +14,8 @@ from speccheck.records.findings import Cell
 
 
 def report_limits(col, cells: dict[str, Cell]) -> None:
+    """Each limit the column's values break; one the column before already broke (a beam path
+    carries it on) is reported once, where it arose."""
     for limit in LIMITS:
         cell = cells.get(limit.quantity)
         if cell is None or cell.status == "conflict":
@@ -21,6 +23,11 @@ def report_limits(col, cells: dict[str, Cell]) -> None:
         low = cell.low if cell.low is not None else 0.0
         high = cell.high if cell.high is not None else math.inf
         if not limit.violated(low, high, col.context):
+            continue
+        before = col.before.get(limit.quantity) if col.before else None
+        if before is not None and before.status != "conflict" and limit.violated(
+                before.low if before.low is not None else 0.0,
+                before.high if before.high is not None else math.inf, col.context):
             continue
         q = limit.quantity
         i = col.net.index[q]

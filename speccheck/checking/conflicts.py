@@ -50,6 +50,17 @@ def likely(col, var: int, state: State) -> list:
     i_lo, i_hi = exp(state.lo[var]), exp(state.hi[var])
     if not value or not math.isfinite(value) or i_lo is None or i_hi is None:
         return []
+    point = col.nominal((var,)).get(var)
+    implied_value = exp(point) if point is not None else None
+    if s.typical is not None and implied_value:
+        # Nominal against nominal, spread by the tolerances of the values involved added in
+        # quadrature (independent errors): a ratio of 1.30 is not a factor of 1.41 because the
+        # worst cases of four tolerances happen to reach it.
+        support = [col.net.names[i] for i in state.support(var)] + [q]
+        spread = math.sqrt(sum(col.tolerance_of(n) ** 2 for n in support if n in col.stated
+                               and col.stated[n].typical is not None))
+        r = s.typical / implied_value
+        return likely_causes(q, r / (1 + spread), r * (1 + spread), col.context)
     s_lo = s.low if s.low > 0 else value
     s_hi = s.high if math.isfinite(s.high) else value
     return likely_causes(q, s_lo / i_hi, s_hi / i_lo, col.context)
@@ -90,17 +101,32 @@ def report(col) -> None:
     if not d.candidates:  # only defaults conflict: nothing the user stated can be blamed
         return
     first = col.first_in_file([names[i] for i in d.candidates])
-    lines = []
+    lines, explained = [], []
     for c in sorted(d.candidates, key=lambda c: col.report.doc.where(col.at(names[c]))):
         rest = implied(col.net, col.log_stated, c)
         if rest.ok:
-            text, _ = implied_text(col, c, rest)
+            text, point = implied_text(col, c, rest)
             causes = likely(col, c, rest)
             why = f"; perhaps {causes[0][1]}" if causes else ""
             lines.append(f"{names[c]} (the rest implies {text}{why})")
+            if causes:
+                explained.append((c, rest, text, point, causes))
         else:
             lines.append(names[c])
     full = via_of_candidates(col, d)
+    if len(explained) == 1:  # one candidate, and only one, matches a catalogued mistake: the likely suspect
+        c, rest, text, point, causes = explained[0]
+        q = names[c]
+        others = [line for line in lines if not line.startswith(f"{q} ")]
+        col.report.add(
+            "relation-conflict",
+            f"{col.name}.{q} is likely the wrong one: it is stated as {col.stated[q].text}, but the rest of "
+            f"the spec ({col.describe_support(rest.support(c))}) implies {text}, via "
+            f"{describe_via(col, rest.via(c))}." + ratio_text(col, q, point) + cause_text(causes)
+            + f" Each of the others could also explain the conflict, with no catalogued mistake: {join(others)}.",
+            col.at(q), quantities=dotted, suspect=col.dotted(q),
+            candidates=[col.dotted(names[k]) for k in d.candidates], cause=causes[0][0].id, likely=True)
+        return
     col.report.add(
         "relation-conflict",
         f"{col.name}: these stated values cannot all be true: {col.describe_support(d.conflict)}"

@@ -163,7 +163,7 @@ class PathWalk:
                     ok = False
         return out if ok else None
 
-    def column(self, name: str, beam: Beam, measured, at: tuple) -> dict:
+    def column(self, name: str, beam: Beam, measured, at: tuple, before: str = "") -> dict:
         inherited = {}
         for q, (low, typ, high) in beam.values.items():
             unit = BY_NAME[q].display_unit
@@ -179,6 +179,7 @@ class PathWalk:
                 paths[key] = at + ("measured", key)
         paths[""] = at
         check = BlockCheck(self.c, name, block, self.tolerance, self.report, paths, inherited, notes=False)
+        check.before = self.sheet.get(before, {})  # a limit it broke already is reported there only
         cells = check.run()
         if beam.net_gdd != (0.0, 0.0, 0.0) or beam.stage_gdd is not None:
             if beam.stage_gdd is not None:
@@ -253,7 +254,7 @@ class PathWalk:
                 self.report.add("stage-model", f"{name}: {text}", here, key=True)
             for check in checks_of(kind, "incident"):
                 self.run_check(check, visit)
-            cells = self.column(name, visit.beam, visit.measured, here)
+            cells = self.column(name, visit.beam, visit.measured, here, columns[-1])
             self.sheet[name] = cells
             columns = columns + [name]
             beam = beam_from(cells, visit.beam, ctx.transform_limit)
@@ -308,7 +309,7 @@ class PathWalk:
                 self.report.add("duplicate-name", f"branch {label!r} has the name of another column",
                                 at + ("branches", branch), key=True)
                 label = f"{name}.{branch}"
-            cells = self.column(label, branch_beam, spec.get("measured"), at + ("branches", branch))
+            cells = self.column(label, branch_beam, spec.get("measured"), at + ("branches", branch), name)
             self.sheet[label] = cells
             self.walk(spec.get("path"), at + ("branches", branch, "path"), beam_from(cells, branch_beam, 0),
                       columns + [label], spec.get("target"), at + ("branches", branch, "target"))

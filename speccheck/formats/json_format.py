@@ -30,6 +30,8 @@ def finding_dict(f: Finding) -> dict:
         out["candidates"] = list(f.candidates)
     if f.cause:
         out["cause"] = f.cause
+    if f.likely:
+        out["likely"] = True
     return out
 
 

@@ -70,6 +70,8 @@ def _result(f: Finding, index: dict[str, int]) -> dict:
         properties["candidates"] = list(f.candidates)
     if f.cause:
         properties["cause"] = f.cause
+    if f.likely:
+        properties["likely"] = True
     if properties:
         out["properties"] = properties
     return out

@@ -21,6 +21,7 @@ class Finding:
     suspect: str | None = None
     candidates: tuple[str, ...] = ()
     cause: str | None = None  # id of the likely mistake (mistakes.py), when one matches
+    likely: bool = False  # the suspect is one of several candidates, the only one a catalogued mistake explains
 
     def __post_init__(self) -> None:
         if self.severity not in SEVERITY_RANK:

@@ -179,3 +179,20 @@ def test_any_text_gives_findings_and_never_an_exception(pieces):
     out = suppress.apply(text, some, "s.yaml")
     assert all(f.rule in RULES for f in out)
     assert all(f.line is None or f.line >= 1 for f in out)
+
+
+def test_a_conflict_is_suppressed_from_the_line_of_any_value_it_concerns(tmp_path):
+    import io
+    import json
+
+    from speccheck.cli import run
+
+    spec = tmp_path / "s.yaml"
+    spec.write_text("spec_version: 1\nlaser:\n  repetition_rate: 80 MHz\n"
+                    "  average_power: 2 W  # speccheck: allow relation-conflict -- the meter reads low\n"
+                    "  pulse_energy: 25 µJ\n", encoding="utf-8")
+    out = io.StringIO()
+    run(["check", "--no-config", "--format", "json", str(spec)], out, io.StringIO())
+    rules = [f["rule"] for f in json.loads(out.getvalue())["files"][0]["findings"]]
+    assert "relation-conflict" not in rules  # reported at line 5 (the energy), suppressed at line 4
+    assert "unused-suppression" not in rules  # and the suppression counts as used

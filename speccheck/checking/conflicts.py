@@ -96,7 +96,8 @@ def report(col) -> None:
                 + ratio_text(col, q, centre) + cause_text(causes),
                 col.at(q), quantities=[col.dotted(q)] + [col.dotted(names[i]) for i in sorted(support)
                                                           if names[i] in col.stated],
-                suspect=col.dotted(q), cause=causes[0][0].id if causes else None)
+                suspect=col.dotted(q), cause=causes[0][0].id if causes else None,
+                related=[col.at(names[i]) for i in support if names[i] in col.stated])
         return
     if not d.candidates:  # only defaults conflict: nothing the user stated can be blamed
         return
@@ -125,14 +126,16 @@ def report(col) -> None:
             f"{describe_via(col, rest.via(c))}." + ratio_text(col, q, point) + cause_text(causes)
             + f" Each of the others could also explain the conflict, with no catalogued mistake: {join(others)}.",
             col.at(q), quantities=dotted, suspect=col.dotted(q),
-            candidates=[col.dotted(names[k]) for k in d.candidates], cause=causes[0][0].id, likely=True)
+            candidates=[col.dotted(names[k]) for k in d.candidates], cause=causes[0][0].id, likely=True,
+            related=[col.at(n) for n in involved if n in col.stated])
         return
     col.report.add(
         "relation-conflict",
         f"{col.name}: these stated values cannot all be true: {col.describe_support(d.conflict)}"
         f"{' (via ' + describe_via(col, full) + ')' if full else ''}. "
         f"Any one of them could be the wrong one: {join(lines)}; state more numbers to tell them apart.",
-        col.at(first), quantities=dotted, candidates=[col.dotted(names[c]) for c in d.candidates])
+        col.at(first), quantities=dotted, candidates=[col.dotted(names[c]) for c in d.candidates],
+        related=[col.at(n) for n in involved if n in col.stated])
 
 
 def via_of_candidates(col, d: Diagnosis) -> frozenset:

@@ -37,11 +37,12 @@ class Report:
         self.points: set[str] = set()  # names of the operating-point columns
 
     def add(self, rule_id: str, message: str, at=(), *, key: bool = False, line=None, column=None,
-            quantities=(), suspect=None, candidates=(), cause=None, likely=False) -> None:
+            quantities=(), suspect=None, candidates=(), cause=None, likely=False, related=()) -> None:
         if line is None:
             line, column = self.doc.where(tuple(at), key=key)
         if self.dedupe and (rule_id, line, column) in self.seen:
             return
         self.seen.add((rule_id, line, column))
         self.findings.append(Finding(rule_id, rule(rule_id).severity, message, self.path, line, column,
-                                     tuple(quantities), suspect, tuple(candidates), cause, likely))
+                                     tuple(quantities), suspect, tuple(candidates), cause, likely,
+                                     tuple(sorted({self.doc.where(tuple(p))[0] for p in related} - {line, None}))))

@@ -179,7 +179,8 @@ def apply(text: str | bytes, findings: tuple[Finding, ...], path: str,
     used: set[tuple[int, str]] = set()
     kept = []
     for f in findings:
-        hit = next((s for s in by_line.get(f.line, ()) if f.rule in s.rules), None) if f.line else None
+        lines = ((f.line,) if f.line else ()) + f.related_lines  # its own line, then its values' lines
+        hit = next((s for line in lines for s in by_line.get(line, ()) if f.rule in s.rules), None)
         if hit is None or f.rule in UNSUPPRESSIBLE:
             kept.append(f)
         else:
@@ -188,6 +189,6 @@ def apply(text: str | bytes, findings: tuple[Finding, ...], path: str,
         unused = [r for r in s.rules if (s.line, r) not in used]
         if unused:
             problems.append(_finding("unused-suppression",
-                                     f"the suppression of {', '.join(unused)} matches no finding on this line; "
+                                     f"the suppression of {', '.join(unused)} matches no finding about this line; "
                                      "remove it", path, s.line, s.column))
     return tuple(sorted(kept + problems, key=Finding.sort_key))

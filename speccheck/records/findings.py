@@ -22,6 +22,8 @@ class Finding:
     candidates: tuple[str, ...] = ()
     cause: str | None = None  # id of the likely mistake (mistakes.py), when one matches
     likely: bool = False  # the suspect is one of several candidates, the only one a catalogued mistake explains
+    # the lines of the other values the finding concerns: a suppression on any of them applies to it
+    related_lines: tuple[int, ...] = ()
 
     def __post_init__(self) -> None:
         if self.severity not in SEVERITY_RANK:

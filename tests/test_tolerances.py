@@ -158,3 +158,15 @@ def test_the_examples_and_the_starters_have_no_such_warning(check):
     texts = [p.read_text(encoding="utf-8") for p in root.glob("*.yaml")] + [starter(k, "s.yaml", None) for k in KINDS]
     for text in texts:
         assert not typical_warnings(check(text))
+
+
+def test_a_feasible_bound_shows_what_the_rest_implies_and_keeps_its_text(tmp_path):
+    # <= 80 µJ with >= 30 W at 600 kHz: E >= 30 W / 600 kHz = 50 µJ (by hand), so 50 … 80 µJ
+    spec = tmp_path / "b.yaml"
+    spec.write_text("spec_version: 1\nlaser:\n  repetition_rate: 600 kHz\n  pulse_energy: '<= 80 µJ'\n"
+                    "  average_power: '>= 30 W'\n", encoding="utf-8")
+    out = io.StringIO()
+    run(["check", "--no-config", "--format", "json", str(spec)], out, io.StringIO())
+    energy = json.loads(out.getvalue())["files"][0]["sheet"]["laser"]["pulse_energy"]
+    assert energy["status"] == "stated" and energy["stated"] == "<= 80 µJ"
+    assert energy["low"] == pytest.approx(30 / (600e3 * 1.0001)) and energy["high"] == pytest.approx(80e-6)

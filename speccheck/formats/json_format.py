@@ -41,6 +41,8 @@ def cell_dict(c: Cell) -> dict:
     if c.status == "conflict":
         out["implied_low"] = _num(c.implied_low)
         out["implied_high"] = _num(c.implied_high)
+    if c.text and c.status != "derived":
+        out["stated"] = c.text
     if c.assumed:
         out["assumed"] = True
     return out
@@ -92,6 +94,8 @@ class _SheetWriter:
                 f'"unit":{self.string(c.unit)},"display_unit":{self.string(c.display_unit)}')
         if c.status == "conflict":
             text += f',"implied_low":{n(c.implied_low)},"implied_high":{n(c.implied_high)}'
+        if c.text and c.status != "derived":
+            text += f',"stated":{self.string(c.text)}'
         if c.assumed:
             text += ',"assumed":true'
         return text + "}"

@@ -49,6 +49,7 @@ class BlockCheck:
         self.inherited: dict[str, Stated] = dict(inherited or {})
         self.notes = notes
         self.before: dict = {}  # the cells of the column before, on a beam path
+        self._nominal: dict = {}  # nominal() by the values left out
 
     # ------------------------------------------------------------- helpers
     def tolerance_of(self, quantity: str) -> float:
@@ -199,7 +200,15 @@ class BlockCheck:
         return join(parts)
 
     def nominal(self, exclude=()) -> dict:
-        """Point values of every quantity computable from the stated typical values."""
+        """Point values of every quantity computable from the stated typical values (computed once
+        per set of left-out values: the cells, the conflicts and the typical-value check share them)."""
+        key = frozenset(exclude)
+        cached = self._nominal.get(key)
+        if cached is None:
+            cached = self._nominal[key] = self._evaluate_nominal(key)
+        return cached
+
+    def _evaluate_nominal(self, exclude: frozenset) -> dict:
         idx = self.net.index
         known = {idx[q]: math.log(s.typical) for q, s in self.stated.items()
                  if s.typical is not None and s.typical > 0.0 and idx[q] not in exclude}

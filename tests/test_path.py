@@ -227,3 +227,18 @@ def test_third_order_dispersion_is_accumulated_and_reported(check, units):
     assert glass == pytest.approx(275e-45, rel=0.01)
     assert cell(r, "net_tod", "w").value == pytest.approx(glass)
     assert cell(r, "net_tod", "d").value == pytest.approx(glass + 1000e-45)
+
+
+@pytest.mark.parametrize("efficiency, impossible", [("70%", True), ("60%", False)])
+def test_a_parametric_output_cannot_take_more_than_its_photons_carry(check, efficiency, impossible):
+    # Manley–Rowe: the signal at 1300 nm takes at most λp/λs = 800/1300 = 61.5% of the pump energy
+    # (J. M. Manley and H. E. Rowe, Proc. IRE 44, 904 (1956); worked by hand)
+    result = check(f"""
+        laser: {{wavelength: 800 nm, pulse_energy: 1 mJ, repetition_rate: 1 kHz}}
+        path:
+          - {{name: opa, kind: parametric, signal_wavelength: 1300 nm, output: signal, efficiency: {efficiency}}}
+        """)
+    found = [f for f in result.findings if f.rule == "manley-rowe-limit"]
+    assert bool(found) is impossible
+    if found:
+        assert "61.5%" in found[0].message and found[0].severity == "error"

@@ -63,6 +63,7 @@ def photon_energy(walk, v: Visit) -> None:
     name, incident, params, at = v.name, v.incident, v.params, v.at
     pump = interval(incident["wavelength"]) if incident.get("wavelength") else None
     s, i = params.get("signal_wavelength"), params.get("idler_wavelength")
+    _manley_rowe(walk, v, pump, s, i)
     if pump and (s is None) != (i is None):  # one given: it must carry less photon energy than the pump
         given, label = (s, "signal") if s is not None else (i, "idler")
         if given[2] <= pump[0]:
@@ -83,6 +84,30 @@ def photon_energy(walk, v: Visit) -> None:
                         f"{name}: signal {s[1] * 1e9:.5g} nm and idler {i[1] * 1e9:.5g} nm need a pump at "
                         f"{implied * 1e9:.5g} nm (1/λp = 1/λs + 1/λi), but the pump is at "
                         f"{pump[1] * 1e9:.5g} nm", at + ("signal_wavelength",))
+
+
+def _manley_rowe(walk, v: Visit, pump, s, i) -> None:
+    """One pump photon makes one signal and one idler photon (Manley–Rowe relations), so one output
+    can take at most λp/λout of the pump's energy: an energy efficiency above that is impossible."""
+    eff = v.params.get("efficiency")
+    if not (pump and eff and pump[1]):
+        return
+    output = v.params.get("output", "signal")
+    lam = s if output == "signal" else i
+    if lam is None:  # the other one given: 1/λout = 1/λp − 1/λother
+        other = i if output == "signal" else s
+        if other is None or not 1 / pump[1] > 1 / other[1]:
+            return
+        lam_out = 1 / (1 / pump[1] - 1 / other[1])
+    else:
+        lam_out = lam[1]
+    limit = pump[1] / lam_out
+    if eff[0] > limit * (1 + 1e-9):
+        walk.report.add("manley-rowe-limit",
+                        f"{v.name}: an energy efficiency of {eff[1] * 100:.3g}% into the {output} at "
+                        f"{lam_out * 1e9:.5g} nm is more than the {limit * 100:.3g}% one photon of the pump at "
+                        f"{pump[1] * 1e9:.5g} nm can give it (Manley–Rowe: at most λp/λout of the pump energy)",
+                        v.at + ("efficiency",), quantities=(f"{v.name}.efficiency",))
 
 
 def measured_spot(walk, v: Visit) -> None:
@@ -236,7 +261,7 @@ def optic_damage(walk, v: Visit) -> None:
 
 CHECKS: dict[str, StageCheck] = {c.id: c for c in (
     StageCheck("photon-energy", "incident", photon_energy, "1/λp = 1/λs + 1/λi for a parametric stage",
-               ("photon-energy-not-conserved",)),
+               ("photon-energy-not-conserved", "manley-rowe-limit")),
     StageCheck("measured-spot", "incident", measured_spot, "a measured spot against the diffraction limit",
                ("spot-below-diffraction-limit",)),
     StageCheck("focus-spot", "column", focus_spot, "Rayleigh range and the paraxial limit of a focus",

@@ -107,6 +107,11 @@ _RULES = (
          "compared with the stated spectral_bandwidth and autocorrelation_width, with the tolerance.",
          "spectral_bandwidth: 8 nm   # spectrum.csv has 12 nm", "spectral_bandwidth: 12 nm"),
     # ---- the beam path
+    Rule("manley-rowe-limit", "error", "a parametric output that takes more energy than its photons can carry",
+         "Each pump photon becomes one signal and one idler photon, so the energy that reaches one output "
+         "is at most λp/λout of the pump energy (the Manley–Rowe relations; J. M. Manley and H. E. Rowe, "
+         "Proc. IRE 44, 904 (1956)). The stage's efficiency is taken as an energy efficiency.",
+         "pump 800 nm, signal 1300 nm, efficiency 70%", "pump 800 nm, signal 1300 nm, efficiency 30%"),
     Rule("typical-values-disagree", "warning", "stated values that agree only at the edges of their tolerances",
          "A maker claims its typical numbers together, so they are checked against each other as well as "
          "the intervals: every relation whose values all have a typical number must hold within a margin "

@@ -242,3 +242,21 @@ def test_a_parametric_output_cannot_take_more_than_its_photons_carry(check, effi
     assert bool(found) is impossible
     if found:
         assert "61.5%" in found[0].message and found[0].severity == "error"
+
+
+@pytest.mark.parametrize("wavelength, bandwidth, outside", [
+    ("800 nm", "40 nm", False),
+    ("3.5 µm", "100 nm", True),  # beyond N-BK7's fit range (0.3–2.5 µm, SCHOTT catalogue data, from memory)
+    ("2.45 µm", "100 nm", True),  # the centre is inside, the energy-carrying part is not
+])
+def test_a_glass_used_outside_its_dispersion_formula_is_a_warning(check, wavelength, bandwidth, outside):
+    from speccheck.physics.materials import lookup
+
+    lo, hi = lookup("n_bk7").valid_range_um
+    assert lo < 0.8 < hi < 3.5
+    result = check(f"""
+        laser: {{wavelength: {wavelength}, spectral_bandwidth: {bandwidth}, pulse_energy: 1 µJ}}
+        path:
+          - {{name: w, kind: material, material: n_bk7, thickness: 1 mm}}
+        """)
+    assert bool([f for f in result.findings if f.rule == "outside-dispersion-range"]) is outside

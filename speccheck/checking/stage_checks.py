@@ -216,6 +216,26 @@ def self_focusing(walk, v: Visit) -> None:
         cells["b_integral_total"] = Cell("derived", before, before, before, "1", "1")
 
 
+def dispersion_range(walk, v: Visit) -> None:
+    """A material's dispersion formula holds only over its published range: the part of the
+    spectrum that carries the pulse's energy (the centre ± one FWHM) must lie inside it."""
+    material = materials.lookup(v.params["material"])
+    lam, width = v.incident.get("wavelength"), v.incident.get("spectral_bandwidth_wavelength")
+    if not (lam and lam.value):
+        return
+    half = width.value if width and width.value else 0.0
+    lo, hi = lam.value - half, lam.value + half
+    r_lo, r_hi = (x * 1e-6 for x in material.valid_range_um)
+    if lo >= r_lo and hi <= r_hi:
+        return
+    span = walk.show("wavelength", lam.value, "nm") + (f" ± {walk.show('wavelength', half, 'nm')}" if half else "")
+    walk.report.add("outside-dispersion-range",
+                    f"{v.name}: the spectrum ({span}) reaches outside the range of {material.label}'s dispersion "
+                    f"formula ({walk.show('wavelength', r_lo, 'nm')} … {walk.show('wavelength', r_hi, 'nm')}, "
+                    f"{material.source}): its GDD and TOD here are extrapolated", v.at, key=True,
+                    quantities=(f"{v.name}.wavelength",))
+
+
 def optic_damage(walk, v: Visit) -> None:
     raw = v.stage.get("damage_threshold")
     if not isinstance(raw, dict):
@@ -268,6 +288,8 @@ CHECKS: dict[str, StageCheck] = {c.id: c for c in (
                ("non-paraxial-focus",)),
     StageCheck("self-focusing", "column", self_focusing, "critical power, collapse distance and B-integral",
                ("self-focusing", "self-focusing-air", "self-focusing-risk", "b-integral")),
+    StageCheck("dispersion-range", "column", dispersion_range, "the spectrum inside the material's formula range",
+               ("outside-dispersion-range",)),
     StageCheck("optic-damage", "column", optic_damage, "peak fluence against a stated damage threshold",
                ("optic-damage", "optic-damage-margin", "damage-rating-not-transferable", "target-unknown"),
                keys=("damage_threshold",)),

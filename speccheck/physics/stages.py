@@ -331,7 +331,7 @@ STAGE_KINDS: dict[str, StageKind] = {k.name: k for k in (
     StageKind("material", (Param("material", "material_name", required=True), Param("thickness", "m", required=True),
                            _T),
               _material, "a thickness of a named glass: GDD from its Sellmeier equation",
-              "GDD = GVD × L, GVD = λ³/(2πc²) d²n/dλ²", checks=("self-focusing",)),
+              "GDD = GVD × L, GVD = λ³/(2πc²) d²n/dλ²", checks=("self-focusing", "dispersion-range")),
     StageKind("compressor", (Param("gdd", "s^2"), _T), _compressor,
               "a grating or prism compressor: negative GDD and a transmission"),
     StageKind("harmonic", (Param("order", "1", required=True, choices=(2.0, 3.0)),

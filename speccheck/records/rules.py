@@ -107,6 +107,11 @@ _RULES = (
          "compared with the stated spectral_bandwidth and autocorrelation_width, with the tolerance.",
          "spectral_bandwidth: 8 nm   # spectrum.csv has 12 nm", "spectral_bandwidth: 12 nm"),
     # ---- the beam path
+    Rule("outside-dispersion-range", "warning", "a material used outside its dispersion formula's range",
+         "Each material's Sellmeier (or gas) formula is published with a wavelength range it was fitted "
+         "over (the material table gives it with its source). Where the part of the spectrum that carries "
+         "the pulse's energy, the centre ± one FWHM, reaches outside it, the GDD and TOD are extrapolated.",
+         "fused_silica at 5 µm", "fused_silica at 800 nm"),
     Rule("manley-rowe-limit", "error", "a parametric output that takes more energy than its photons can carry",
          "Each pump photon becomes one signal and one idler photon, so the energy that reaches one output "
          "is at most λp/λout of the pump energy (the Manley–Rowe relations; J. M. Manley and H. E. Rowe, "

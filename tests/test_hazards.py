@@ -165,3 +165,14 @@ def test_a0_near_one_is_noted(check):
     r = check(LASER.replace("pulse_energy: 2 mJ", "pulse_energy: 2 J").replace("beam_diameter: 2 mm",
               "beam_diameter: 50 mm") + "  - {name: lens, kind: focus, focal_length: 200 mm}\ntarget: {}\n")
     assert "relativistic-intensity" in [f.rule for f in r.findings]
+
+
+def test_the_barrier_suppression_intensity_agrees_with_the_published_rule_and_table(units):
+    k = units.constants
+    for gas, ev in hazards.IONIZATION_ENERGY_EV.items():
+        got = hazards.barrier_suppression_intensity(ev * k.e, k) / 1e4  # W/cm²
+        # the atomic-units rule of thumb I_BSI ≈ 4.00e9 (I_p/eV)^4 W/cm² (Augst et al. 1989)
+        assert got == pytest.approx(4.00e9 * ev**4, rel=0.01), gas
+    # Augst et al. give about 2.5e14 W/cm² for argon and 1.4e15 for helium (from memory)
+    assert hazards.barrier_suppression_intensity(15.760 * k.e, k) / 1e4 == pytest.approx(2.5e14, rel=0.05)
+    assert hazards.barrier_suppression_intensity(24.587 * k.e, k) / 1e4 == pytest.approx(1.4e15, rel=0.05)

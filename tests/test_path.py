@@ -260,3 +260,17 @@ def test_a_glass_used_outside_its_dispersion_formula_is_a_warning(check, wavelen
           - {{name: w, kind: material, material: n_bk7, thickness: 1 mm}}
         """)
     assert bool([f for f in result.findings if f.rule == "outside-dispersion-range"]) is outside
+
+
+def test_an_intensity_above_the_gas_barrier_suppression_is_a_warning(check):
+    # argon's barrier-suppression intensity is about 2.5e14 W/cm² (Augst et al., PRL 63, 2212 (1989))
+    def run(energy):
+        return check(f"""
+            laser: {{wavelength: 800 nm, repetition_rate: 1 kHz, pulse_energy: {energy}, pulse_duration: 30 fs,
+                    pulse_shape: gaussian, beam_diameter: 10 mm, beam_profile: gaussian}}
+            path:
+              - {{name: lens, kind: focus, focal_length: 750 mm}}
+            target: {{gas: argon}}
+            """)
+    assert [f for f in run("1.5 mJ").findings if f.rule == "above-barrier-suppression"]
+    assert not [f for f in run("0.2 mJ").findings if f.rule == "above-barrier-suppression"]

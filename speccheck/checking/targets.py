@@ -133,6 +133,16 @@ def strong_field(walk, last: str, target, target_at: tuple) -> None:
     cells["ionization_potential"] = Cell("derived", ip, ip, ip, "J", "eV")
     cells["keldysh_parameter"] = Cell("derived", None, None, gamma, "1", "1")
     cells["hhg_cutoff_energy"] = Cell("derived", None, None, cutoff, "J", "eV")
+    bsi = hazards.barrier_suppression_intensity(ip, walk.c.units.constants)
+    cells["barrier_suppression_intensity"] = Cell("derived", None, None, bsi, "W/m^2", "W/cm^2")
+    if intensity.value > bsi:
+        walk.report.add("above-barrier-suppression",
+                        f"at {last!r} the peak intensity {walk.show('peak_intensity', intensity.value, 'W/cm^2')} "
+                        f"is above the barrier-suppression intensity of {gas} "
+                        f"({walk.show('peak_intensity', bsi, 'W/cm^2')}; Augst et al. 1989): the gas is ionized "
+                        "before the pulse's peak, so the cutoff and Keldysh figures, which assume the neutral "
+                        "atom, overstate what the peak does", target_at + ("gas",),
+                        quantities=(f"{last}.peak_intensity",))
     order = f" (harmonic order {cutoff / photon.value:.0f})" if photon and photon.value else ""
     regime = "tunnel" if gamma < 1 else "multiphoton"
     walk.report.add("strong-field-figures",

@@ -112,6 +112,12 @@ _RULES = (
          "over (the material table gives it with its source). Where the part of the spectrum that carries "
          "the pulse's energy, the centre ± one FWHM, reaches outside it, the GDD and TOD are extrapolated.",
          "fused_silica at 5 µm", "fused_silica at 800 nm"),
+    Rule("above-barrier-suppression", "warning", "an intensity that ionizes the gas before the pulse's peak",
+         "Above the barrier-suppression intensity I = c ε0 F²/2 with F = π ε0 I_p²/(Z e³) (≈ 4e9 (I_p/eV)⁴ "
+         "W/cm² for Z = 1; S. Augst et al., Phys. Rev. Lett. 63, 2212 (1989)) the field lowers the "
+         "Coulomb barrier below the ground state, and the neutral gas is gone before the peak arrives: "
+         "the Keldysh parameter and the high-harmonic cutoff at the peak intensity no longer describe it.",
+         "argon, peak_intensity 1e15 W/cm^2", "argon, peak_intensity 1e14 W/cm^2"),
     Rule("manley-rowe-limit", "error", "a parametric output that takes more energy than its photons can carry",
          "Each pump photon becomes one signal and one idler photon, so the energy that reaches one output "
          "is at most λp/λout of the pump energy (the Manley–Rowe relations; J. M. Manley and H. E. Rowe, "

@@ -274,3 +274,21 @@ def test_an_intensity_above_the_gas_barrier_suppression_is_a_warning(check):
             """)
     assert [f for f in run("1.5 mJ").findings if f.rule == "above-barrier-suppression"]
     assert not [f for f in run("0.1 mJ").findings if f.rule == "above-barrier-suppression"]  # 1.37e14 W/cm²
+
+
+def test_a_harmonic_beam_is_narrower_by_the_root_of_its_order(check):
+    # the n-th power of a Gaussian intensity profile: its 1/e² radius found by bisection on the
+    # sampled profile, against w/√n (independent of the code's closed form)
+    import numpy as np
+
+    r = np.linspace(0, 3, 300001)
+    for n in (2, 3):
+        profile = np.exp(-2 * r**2) ** n
+        radius = r[np.argmin(abs(profile - np.exp(-2)))]
+        assert radius == pytest.approx(1 / math.sqrt(n), rel=1e-4)
+    result = check("""
+        laser: {wavelength: 1030 nm, pulse_energy: 1 mJ, beam_diameter: 4 mm}
+        path:
+          - {name: shg, kind: harmonic, order: 2, efficiency: 50%}
+        """)
+    assert result.sheet["shg"]["beam_diameter"].value == pytest.approx(4e-3 / math.sqrt(2))

@@ -233,8 +233,16 @@ def _harmonic(beam, p, ctx):
         changes["pulse_duration"] = scaled(beam.get("pulse_duration"), point(1.0 / root))
     if beam.get("spectral_bandwidth"):
         changes["spectral_bandwidth"] = scaled(beam.get("spectral_bandwidth"), point(root))
+    if beam.get("beam_diameter"):
+        # the n-th power of a Gaussian profile exp(-2r²/w²) is exp(-2n r²/w²): a 1/e² width w/√n, with
+        # the same Rayleigh range and wavefront (undepleted pump, near field)
+        changes["beam_diameter"] = scaled(beam.get("beam_diameter"), point(1.0 / root))
     ctx.note(f"duration and bandwidth of the harmonic taken as τ/√{n} and √{n}·Δν (Gaussian pulse, "
              "undepleted pump, no group-velocity mismatch: common practice)")
+    m2 = beam.get("m2")
+    ctx.note(f"the harmonic's beam taken as D/√{n} with the pump's Rayleigh range and wavefront (undepleted "
+             "pump, thin crystal, a TEM00 Gaussian beam)" + (
+                 "; with an M² above 1 this is only an estimate" if m2 and (m2[1] or m2[2]) > 1.05 else ""))
     tl = scaled(beam.tl_duration, point(1.0 / root)) if beam.tl_duration else None
     net = tuple(x / n for x in beam.net_gdd)  # the harmonic's spectral phase: φ2 / n, φ3 / n²
     tod = tuple(x / n**2 for x in beam.net_tod)

@@ -234,3 +234,15 @@ def test_every_rule_that_findings_use_is_in_the_catalogue(check):
     for text in ("laser:\n  m2: 0.8\n", "laser: [1\n", "laser:\n  x: 1\n"):
         for f in check(text).findings:
             assert f.rule in RULES and f.severity == RULES[f.rule].severity
+
+
+@pytest.mark.parametrize("bandwidth, noted", [("200 nm", True), ("100 nm", False)])
+def test_a_very_wide_bandwidth_says_its_conversion_is_linearised(check, bandwidth, noted):
+    result = check(f"laser:\n  wavelength: 800 nm\n  spectral_bandwidth: {bandwidth}\n")
+    found = [f for f in result.findings if f.rule == "bandwidth-linearised"]
+    assert bool(found) is noted
+    if found:
+        # exact: c (1/700 nm − 1/900 nm) against the linear c · 200 nm / (800 nm)², computed here
+        lam, d = 800e-9, 200e-9
+        exact, linear = 1 / (lam - d / 2) - 1 / (lam + d / 2), d / lam**2
+        assert f"{(exact / linear - 1) * 100:.2g}%" in found[0].message  # (Δλ/λ)²/4 = 1.6%

@@ -48,6 +48,7 @@ def report_limits(col, cells: dict[str, Cell]) -> None:
 
 
 _BANDWIDTHS = ("spectral_bandwidth", "spectral_bandwidth_wavelength", "spectral_bandwidth_wavenumber")
+LINEARISED_FROM = 0.2  # Δλ/λ beyond which c Δλ/λ² is more than 1% off
 
 
 def report_bandwidth(col, cells: dict[str, Cell]) -> None:
@@ -56,6 +57,17 @@ def report_bandwidth(col, cells: dict[str, Cell]) -> None:
     bw, carrier = cells.get("spectral_bandwidth"), cells.get("carrier_frequency")
     if not (bw and carrier and bw.value and carrier.value) or bw.status == "conflict":
         return
+    fraction = bw.value / carrier.value
+    if LINEARISED_FROM < fraction <= 1.0 and any(q in col.stated for q in _BANDWIDTHS[:2]):
+        # the half-maximum points λ ∓ Δλ/2 give Δν = c Δλ / (λ² − Δλ²/4) exactly; c Δλ / λ² is
+        # (Δλ/λ)²/4 short of it: 1% at Δλ/λ = 20% (Taylor expansion of 1/λ)
+        where = next(q for q in _BANDWIDTHS if q in col.stated)
+        col.report.add(
+            "bandwidth-linearised",
+            f"{col.name}: the bandwidth is {fraction * 100:.3g}% of the carrier, so converting it between "
+            f"wavelength and frequency with Δν = c Δλ/λ² is {fraction ** 2 / 4 * 100:.2g}% off the exact "
+            "conversion of its half-maximum points (c Δλ / (λ² − Δλ²/4)); the sheet uses the linear one",
+            col.at(where), quantities=[col.dotted("spectral_bandwidth")])
     if bw.value <= carrier.value:  # the numbers as stated: no tolerance makes this possible
         return
     where = next((q for q in _BANDWIDTHS if q in col.stated), "spectral_bandwidth")

@@ -118,6 +118,11 @@ _RULES = (
          "Coulomb barrier below the ground state, and the neutral gas is gone before the peak arrives: "
          "the Keldysh parameter and the high-harmonic cutoff at the peak intensity no longer describe it.",
          "argon, peak_intensity 1e15 W/cm^2", "argon, peak_intensity 1e14 W/cm^2"),
+    Rule("bandwidth-linearised", "note", "a bandwidth so wide that its wavelength–frequency conversion is linearised",
+         "The sheet converts a bandwidth between wavelength and frequency with Δν = c Δλ/λ², the first-order "
+         "form. The exact conversion of the half-maximum points λ ∓ Δλ/2 is c Δλ/(λ² − Δλ²/4); the two "
+         "differ by (Δλ/λ)²/4, which passes 1% at Δλ/λ = 20%.",
+         "wavelength: 800 nm\nspectral_bandwidth: 200 nm", "wavelength: 800 nm\nspectral_bandwidth: 40 nm"),
     Rule("manley-rowe-limit", "error", "a parametric output that takes more energy than its photons can carry",
          "Each pump photon becomes one signal and one idler photon, so the energy that reaches one output "
          "is at most λp/λout of the pump energy (the Manley–Rowe relations; J. M. Manley and H. E. Rowe, "

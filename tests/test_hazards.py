@@ -176,3 +176,12 @@ def test_the_barrier_suppression_intensity_agrees_with_the_published_rule_and_ta
     # Augst et al. give about 2.5e14 W/cm² for argon and 1.4e15 for helium (from memory)
     assert hazards.barrier_suppression_intensity(15.760 * k.e, k) / 1e4 == pytest.approx(2.5e14, rel=0.05)
     assert hazards.barrier_suppression_intensity(24.587 * k.e, k) / 1e4 == pytest.approx(1.4e15, rel=0.05)
+
+
+def test_a0_by_polarization_against_the_published_rule(units):
+    k = units.constants
+    # linear light: a0 ≈ 0.855 λ[µm] √(I / 1e18 W/cm²) (a published rule of the field)
+    lin = hazards.vector_potential(1e18 * 1e4, 0.8e-6, k)
+    assert lin == pytest.approx(0.855 * 0.8, rel=0.01)
+    # circular light of the same intensity: each component carries half of it
+    assert hazards.vector_potential(1e18 * 1e4, 0.8e-6, k, "circular") == pytest.approx(lin / math.sqrt(2))

@@ -292,3 +292,18 @@ def test_a_harmonic_beam_is_narrower_by_the_root_of_its_order(check):
           - {name: shg, kind: harmonic, order: 2, efficiency: 50%}
         """)
     assert result.sheet["shg"]["beam_diameter"].value == pytest.approx(4e-3 / math.sqrt(2))
+
+
+def test_circular_light_at_a_gas_target_says_harmonics_are_suppressed(check):
+    text = """
+        laser: {{wavelength: 800 nm, repetition_rate: 1 kHz, pulse_energy: 0.1 mJ, pulse_duration: 30 fs,
+                pulse_shape: gaussian, beam_diameter: 10 mm, beam_profile: gaussian}}
+        path:
+          - {{name: lens, kind: focus, focal_length: 750 mm}}
+        target: {{gas: argon{extra}}}
+        """
+    (linear,) = [f for f in check(text.format(extra="")).findings if f.rule == "strong-field-figures"]
+    (circular,) = [f for f in check(text.format(extra=", polarization: circular")).findings
+                   if f.rule == "strong-field-figures"]
+    assert "suppressed" in circular.message and "suppressed" not in linear.message
+    assert "circular polarization" in circular.message

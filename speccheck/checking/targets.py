@@ -111,7 +111,9 @@ def strong_field(walk, last: str, target, target_at: tuple) -> None:
         return
     k = walk.c.units.constants
     up = hazards.ponderomotive_energy(intensity.value, lam.value, k)
-    a0 = hazards.vector_potential(intensity.value, lam.value, k)
+    polarization = target.get("polarization", "linear") if isinstance(target, dict) else "linear"
+    polarization = polarization if polarization in ("linear", "circular") else "linear"
+    a0 = hazards.vector_potential(intensity.value, lam.value, k, polarization)
     cells["ponderomotive_energy"] = Cell("derived", None, None, up, "J", "eV")
     cells["normalized_vector_potential"] = Cell("derived", None, None, a0, "1", "1")
     if a0 >= hazards.A0_NOTE_FROM:
@@ -145,7 +147,10 @@ def strong_field(walk, last: str, target, target_at: tuple) -> None:
                         quantities=(f"{last}.peak_intensity",))
     order = f" (harmonic order {cutoff / photon.value:.0f})" if photon and photon.value else ""
     regime = "tunnel" if gamma < 1 else "multiphoton"
+    circular = "; with circular light, high-harmonic generation is suppressed (the returning electron misses " \
+        "the ion), so the cutoff is only the linear-light figure" if polarization == "circular" else ""
     walk.report.add("strong-field-figures",
                     f"at {last!r} in {gas}: U_p = {up / ev:.3g} eV, Keldysh γ = {gamma:.3g} ({regime} regime), "
-                    f"high-harmonic cutoff I_p + 3.17 U_p = {cutoff / ev:.4g} eV{order}, a0 = {a0:.3g}",
+                    f"high-harmonic cutoff I_p + 3.17 U_p = {cutoff / ev:.4g} eV{order}, a0 = {a0:.3g} "
+                    f"({polarization} polarization){circular}",
                     target_at + ("gas",), quantities=(f"{last}.peak_intensity",))

@@ -85,10 +85,15 @@ def ponderomotive_energy(intensity: float, wavelength: float, k) -> float:
     return k.e**2 * intensity * wavelength**2 / (8.0 * math.pi**2 * k.eps0 * k.m_e * k.c**3)
 
 
-def vector_potential(intensity: float, wavelength: float, k) -> float:
+def vector_potential(intensity: float, wavelength: float, k, polarization: str = "linear") -> float:
+    """a0 = e E0 / (m_e ω c) with E0 the peak field of the (linear) wave, I = c ε0 E0²/2; for circular
+    light of the same intensity each of the two field components has E0/√2, so a0 is 1/√2 of the
+    linear value (the convention that keeps a0 = 1 the threshold of relativistic motion for both).
+    U_p = e² E0² / (4 m_e ω²) depends only on the intensity, whatever the polarization."""
     field = math.sqrt(2.0 * intensity / (k.c * k.eps0))
     omega = 2.0 * math.pi * k.c / wavelength
-    return k.e * field / (k.m_e * omega * k.c)
+    a0 = k.e * field / (k.m_e * omega * k.c)
+    return a0 / math.sqrt(2.0) if polarization == "circular" else a0
 
 
 def barrier_suppression_intensity(ionization: float, k, charge: int = 1) -> float:

@@ -307,3 +307,18 @@ def test_circular_light_at_a_gas_target_says_harmonics_are_suppressed(check):
                    if f.rule == "strong-field-figures"]
     assert "suppressed" in circular.message and "suppressed" not in linear.message
     assert "circular polarization" in circular.message
+
+
+def test_an_unstated_m2_makes_the_focus_a_bound(check):
+    # 4 λ f / (π D) with M² = 1 (Gaussian-beam optics, by hand): 4 · 800 nm · 100 mm / (π · 5 mm) = 20.37 µm
+    result = check("""
+        laser: {wavelength: 800 nm, pulse_energy: 1 mJ, pulse_duration: 100 fs, beam_diameter: 5 mm}
+        path:
+          - {name: lens, kind: focus, focal_length: 100 mm}
+        """)
+    spot = result.sheet["lens"]["beam_diameter"]
+    # the low end: λ and f at -1 %, D at +5 % (their default tolerances); no upper end
+    assert spot.low == pytest.approx(4 * 800e-9 * 0.99 * 0.1 * 0.99 / (math.pi * 5e-3 * 1.05)) and spot.high is None
+    assert spot.value == pytest.approx(4 * 800e-9 * 0.1 / (math.pi * 5e-3))  # typical: M² = 1
+    assert result.sheet["lens"]["peak_intensity"].low is None  # an upper bound only
+    assert any(f.rule == "stage-model" and "M² is not stated" in f.message for f in result.findings)

@@ -285,7 +285,11 @@ def _telescope(beam, p, ctx):
 
 
 def _focus(beam, p, ctx):
-    d, lam, m2 = beam.get("beam_diameter"), beam.get("wavelength"), beam.get("m2") or point(1.0)
+    d, lam, m2 = beam.get("beam_diameter"), beam.get("wavelength"), beam.get("m2")
+    if m2 is None:  # M² is never below 1 (ISO 11146): unstated, it is 1 … ∞, with 1 as its typical value
+        m2 = (1.0, 1.0, math.inf)
+        ctx.note("M² is not stated, so it is taken as at least 1 (1 for the typical values): the spot is a "
+                 "lower bound and the intensity and fluence at the focus upper bounds; state m2 to make them exact")
     if not d or not lam:
         ctx.note("the beam diameter and wavelength before the focus are needed for the spot size")
         return beam.with_values(beam_diameter=None)

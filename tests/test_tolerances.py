@@ -170,3 +170,13 @@ def test_a_feasible_bound_shows_what_the_rest_implies_and_keeps_its_text(tmp_pat
     energy = json.loads(out.getvalue())["files"][0]["sheet"]["laser"]["pulse_energy"]
     assert energy["status"] == "stated" and energy["stated"] == "<= 80 µJ"
     assert energy["low"] == pytest.approx(30 / (600e3 * 1.0001)) and energy["high"] == pytest.approx(80e-6)
+
+
+def test_the_sheet_shows_a_narrowed_bound_beside_its_text(tmp_path):
+    spec = tmp_path / "b.yaml"
+    spec.write_text("spec_version: 1\nlaser:\n  repetition_rate: 600 kHz\n  pulse_energy: '<= 80 µJ'\n"
+                    "  average_power: '>= 30 W'\n", encoding="utf-8")
+    out = io.StringIO()
+    run(["check", "--no-config", "--no-color", str(spec)], out, io.StringIO())
+    row = next(line for line in out.getvalue().splitlines() if "pulse_energy" in line)
+    assert "<= 80 µJ" in row and "[50 … 80] µJ" in row

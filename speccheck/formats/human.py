@@ -48,6 +48,9 @@ def _cell_text(cell: Cell, show) -> str:
     unit = cell.display_unit or cell.unit
     if cell.status in ("stated", "conflict"):
         text = cell.text or show(cell.value, unit)
+        if cell.status == "stated" and cell.text[:1] in "<>≤≥={" and cell.low is not None and cell.high is not None:
+            # a bound the rest of the spec narrows: what it leaves, beside what was written
+            text += f"  → [{_span(show, cell.low, cell.high, unit)}]" + ("" if unit == "1" else f" {pretty_unit(unit)}")
     elif cell.low is not None and cell.high is not None and cell.high / cell.low <= 1 + 1e-9:
         text = show(cell.value, unit)
     elif cell.value is None or cell.low is None or cell.high is None:

@@ -13,7 +13,10 @@ EXPECTED = {
     "proposal-intensity-claim.yaml": [("relation-conflict", 18, "laser.peak_intensity")],
     "maker-sheet-operating-points.yaml": [("relation-conflict", 18, None),
                                           ("operating-point-beyond-limit", 27, None)],
-    "fibre-oscillator-measured.yaml": [("relation-conflict", 12, "laser.pulse_duration")],
+    # its spectrum is noisy: the transform limit is known only to 137-183 fs, and an interval that
+    # wide (over 20 % of the value) is a warning (physics/spectra.py, method step 6)
+    "fibre-oscillator-measured.yaml": [("relation-conflict", 12, "laser.pulse_duration"),
+                                       ("measured-data-quality", 13, None)],
     "amplifier-pump-probe-path.yaml": [("target-not-met", 39, None)],
     "proposal-focus-path.yaml": [("target-not-met", 25, None)],
     "rod-self-focusing.yaml": [("b-integral", 16, None), ("self-focusing", 16, None)],

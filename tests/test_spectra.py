@@ -1,4 +1,4 @@
-"""speccheck.physics.spectra: widths and transform limits of measured spectra and traces.
+"""speccheck.physics.spectra and .autocorrelation: widths and transform limits of measured spectra and traces.
 
 The spectra are built here in frequency, S(ν), so that the analytic values hold
 exactly, and turned into counts per unit wavelength with the Jacobian
@@ -27,13 +27,8 @@ import math
 import numpy as np
 import pytest
 
-from speccheck.physics.spectra import (
-    AutocorrelationAnalysis,
-    DataProblem,
-    SpectrumAnalysis,
-    analyse_autocorrelation,
-    analyse_spectrum,
-)
+from speccheck.physics.autocorrelation import AutocorrelationAnalysis, analyse_autocorrelation
+from speccheck.physics.spectra import DataProblem, SpectrumAnalysis, analyse_spectrum
 
 C = 299792458.0  # m/s, exact (SI definition)
 SECH2_FWHM = 2.0 * math.acosh(math.sqrt(2.0))  # FWHM of sech²(x) in x: 1.7627 (closed form)

@@ -14,6 +14,7 @@ from dataclasses import dataclass, field
 from typing import Mapping
 
 from speccheck.checking.column import KEYS, BlockCheck
+from speccheck.checking.measured_data import DataFiles
 from speccheck.checking.report import Report
 from speccheck.records.findings import Cell, FileResult, Finding
 from speccheck.reading.loader import Limits, load
@@ -36,15 +37,18 @@ class Options:
 class Checker:
     """Checks documents.  ``read(name, spec_path) -> bytes`` opens measured data files named
     in a spec (the command line supplies one that reads next to the spec); without it, data
-    files are reported as not read."""
+    files are reported as not read.  A checker reads and analyses each data file once per
+    document, and equal bytes once in its life (``measured_data.DataFiles``)."""
 
     def __init__(self, units: UnitSystem, options: Options = Options(), read=None) -> None:
         self.units = units
         self.options = options
         self.values = ValueParser(units)
         self.read = read
+        self.data_files = DataFiles()
 
     def check_text(self, text: str | bytes, path: str) -> FileResult:
+        self.data_files.new_document()
         doc = load(text, self.options.limits)
         report = Report(path, doc)
         for p in doc.problems:

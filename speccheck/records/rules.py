@@ -99,12 +99,27 @@ _RULES = (
          "laser:\n  average_power: <= 20 W\noperating_points:\n  - {name: 1 MHz, average_power: 18 W}"),
     Rule("measured-data", "error", "a measured data file that cannot be used",
          "A spectrum or autocorrelation file must exist next to the spec (a relative path inside its "
-         "folder), hold at least 8 rows of two finite numbers, have a strictly monotonic first column "
-         "(positive wavelengths) and one clear peak that falls to half its height on both sides.",
+         "folder) and hold at least 8 rows of two finite numbers (at most 1,000,000), at least 8 of them "
+         "at distinct wavelengths or delays (rows may come in any order; repeated ones are averaged), "
+         "positive wavelengths, and one clear peak inside the data that stands above its noise and falls "
+         "to half its height on both sides (a trace: on one side at least).",
          "spectrum: {file: missing.csv}", "spectrum: {file: spectrum.csv, wavelength_unit: nm}"),
+    Rule("measured-data-quality", "warning", "measured data whose widths the numbers do not settle well",
+         "A spectrum or autocorrelation file was used, but something in it makes its widths or its "
+         "transform limit less certain than they look: no baseline clear of the peak on one or both "
+         "sides (a scan window too narrow), a baseline that differs between the sides, a spectrum that "
+         "touches the edge of the window, dips below half maximum between peaks, looks saturated or "
+         "over-subtracted, a trace that is cut off or not symmetric, noise that stays high after "
+         "smoothing, a transform limit whose interval is wide, or repeated wavelengths or delays. The "
+         "message says which; the measured values and their intervals are used all the same. A longer "
+         "scan, a dark spectrum taken at the same settings, or a lower detector gain usually fixes it.",
+         "spectrum: {file: spectrum.csv}   # the window ends on the spectrum's wing",
+         "spectrum: {file: spectrum.csv}   # baseline on both sides of the peak"),
     Rule("measured-mismatch", "error", "a stated value that its own measured data contradicts",
          "The FWHM bandwidth of a measured spectrum and the FWHM of a measured autocorrelation are "
-         "compared with the stated spectral_bandwidth and autocorrelation_width, with the tolerance.",
+         "compared with the stated spectral_bandwidth and autocorrelation_width: the bandwidth with the "
+         "tolerance, the autocorrelation width (and the transform-limited duration) with the interval "
+         "its data give.",
          "spectral_bandwidth: 8 nm   # spectrum.csv has 12 nm", "spectral_bandwidth: 12 nm"),
     # ---- the beam path
     Rule("outside-dispersion-range", "warning", "a material used outside its dispersion formula's range",
@@ -304,6 +319,7 @@ _SOURCES = {
     "self-focusing-risk": "J. H. Marburger, Prog. Quantum Electron. 4, 35 (1975)",
     "self-focusing-air": "J. H. Marburger (1975); n2 of air: E. T. J. Nibbering et al., J. Opt. Soc. Am. B 14, "
                          "650 (1997); Yu. E. Geints et al., Appl. Phys. Lett. 99, 181114 (2011)",
+    "measured-data-quality": "common practice",
     "b-integral": "common practice in amplifier design",
     "optic-damage": "the optic's own rating; √(τ/τ_ref) scaling above about 10 ps: common practice",
     "optic-damage-margin": "common practice (a safety factor of 2)",

@@ -22,6 +22,8 @@ from speccheck import files
 from speccheck.records.findings import FileResult
 from speccheck.reading.loader import MAX_DEPTH, Limits
 
+MAX_FILE_SIZE = 1024 * 1024 * 1024  # the largest --max-file-size: a spec is read whole into memory
+
 def _parser() -> argparse.ArgumentParser:
     p = argparse.ArgumentParser(prog="speccheck", description="Check ultrafast laser experiment specs: "
                                 "units, physics consistency, and every number that follows.")
@@ -38,7 +40,8 @@ def _parser() -> argparse.ArgumentParser:
     c.add_argument("--review", action="store_true",
                    help="a short review: consistent claims, impossible ones, numbers implied but not stated "
                    "(same as --format review)")
-    c.add_argument("-o", "--output", metavar="FILE", help="write the report to FILE instead of standard output")
+    c.add_argument("-o", "--output", metavar="FILE",
+                   help="write the report to FILE instead of standard output ('-': standard output)")
     c.add_argument("--strict", action="store_true", help="exit 1 on warnings too (same as --fail-on warning)")
     c.add_argument("--fail-on", choices=["error", "warning", "note"],
                    help="the lowest severity that makes the exit code 1 (default error, or the configuration's)")
@@ -117,18 +120,35 @@ def _check(args, stdout, stderr, stdin=None) -> int:
     from speccheck.formats import OutputOptions, writer
     from speccheck.reading.units import UnitSystem
 
+    if any(not p for p in args.paths) or args.output == "":
+        stderr.write("speccheck: an empty path was given (an unset variable?); name a file, a folder or '-'\n")
+        return 2
+    if args.output == "-":  # standard output, as without -o
+        args.output = None
+    elif args.output and args.output.endswith(("/", os.sep)):
+        stderr.write(f"speccheck: cannot write {files.printable(args.output)}: it names a folder; name the report "
+                     "file\n")
+        return 2
+    if args.max_file_size > MAX_FILE_SIZE:
+        stderr.write(f"speccheck: --max-file-size {args.max_file_size} is more than speccheck reads; using "
+                     f"{MAX_FILE_SIZE}\n")
+        args.max_file_size = MAX_FILE_SIZE
     config = _config(args, stderr)
     if config is None:
         return 2
     expansion = files.spec_files(args.paths, cfg.Selector(config) if config.include or config.exclude else None)
     for pattern in expansion.unmatched:
-        stderr.write(f"speccheck: no spec file matches {pattern!r}\n")
+        stderr.write(f"speccheck: no spec file matches {files.printable(repr(pattern))}\n")
     if not expansion.files:
-        stderr.write("speccheck: no spec files (*.yaml, *.yml) found in " + ", ".join(args.paths) + "\n")
+        stderr.write("speccheck: no spec files (*.yaml, *.yml) found in "
+                     + ", ".join(map(files.printable, args.paths)) + "\n")
     for name in expansion.skipped:
-        stderr.write(f"speccheck: skipped {name}: left out by the include/exclude patterns of {config.path}\n")
+        stderr.write(f"speccheck: skipped {files.printable(name)}: left out by the include/exclude patterns of "
+                     f"{files.printable(str(config.path))}\n")
+    from speccheck.reading import unit_table
+
     inputs = [str(path) for name, path in expansion.files if name != "-"] + (
-        [str(config.path)] if getattr(config, "path", None) else [])
+        [str(config.path)] if getattr(config, "path", None) else []) + [str(p) for p in (unit_table.path(),) if p]
     target = None
     if args.output:
         try:
@@ -148,6 +168,12 @@ def _check(args, stdout, stderr, stdin=None) -> int:
         shown = files.STDIN_NAME if name == "-" else files.printable(name)
         try:
             data = files.read_stdin(stdin, limits.max_bytes) if name == "-" else files.read_spec(path, limits.max_bytes)
+        except MemoryError:
+            exc = OSError(errno.ENOMEM, "not enough memory to read it (lower --max-file-size)")
+            io_failure = True
+            stderr.write(f"speccheck: cannot read {shown}: {files.reason(exc)}\n")
+            results.append(files.read_failure(shown, exc))
+            continue
         except OSError as exc:
             io_failure = True
             stderr.write(f"speccheck: cannot read {shown}: {files.reason(exc)}\n")
@@ -291,7 +317,7 @@ def _relations(stdout) -> int:
 
 def run(argv: list[str], stdout=None, stderr=None, stdin=None) -> int:
     stdout = stdout if stdout is not None else sys.stdout
-    stderr = stderr if stderr is not None else (sys.stderr or open(os.devnull, "w"))
+    stderr = files.Quiet(stderr if stderr is not None else sys.stderr)
     parser = _parser()
     try:
         args = parser.parse_args(argv)
@@ -333,6 +359,11 @@ def _terminated(signum, frame) -> None:
 def main() -> None:
     import signal
 
+    for stream in (sys.stdout, sys.stderr):  # text for people: what the terminal cannot show is escaped
+        try:
+            stream.reconfigure(errors="backslashreplace")
+        except (AttributeError, ValueError, OSError):
+            pass
     try:
         signal.signal(signal.SIGTERM, _terminated)
     except (ValueError, OSError, AttributeError):  # not the main thread, or no SIGTERM here

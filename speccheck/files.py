@@ -307,3 +307,24 @@ def write_stdout(stdout, stderr, fill, fmt: str) -> bool:
         stderr.write(f"speccheck: cannot write the report to standard output: {reason(exc)}\n")
         return False
     return True
+
+
+class Quiet:
+    """Standard error for notes: a note that cannot be written (a closed pipe, a full disk) never
+    costs the report or changes the exit code."""
+
+    def __init__(self, stream) -> None:
+        self.stream = stream
+
+    def write(self, text: str) -> int:
+        try:
+            return self.stream.write(text) if self.stream is not None else 0
+        except (OSError, ValueError, UnicodeError):
+            return 0
+
+    def flush(self) -> None:
+        try:
+            if self.stream is not None:
+                self.stream.flush()
+        except (OSError, ValueError):
+            pass

@@ -107,7 +107,6 @@ def test_tables_as_bytes_with_a_byte_order_mark_windows_line_ends_and_more_colum
 @pytest.mark.parametrize("text", [
     "# c\nx,y\n" + "".join(f"{i * 0.5:.3f},{math.sin(i):.6e}\n" for i in range(50)),
     "\n\n" + "".join(f"  {i}\t {i * i}  ,\n" for i in range(20)) + "# end\n",
-    "".join(f"{i}_0 {i}\n" for i in range(1, 12)),  # Python reads 1_0 as 10, numpy does not
 ])
 def test_reading_in_one_pass_or_line_by_line_gives_the_same_numbers(text):
     x, y = read_table(text)
@@ -268,3 +267,10 @@ def test_data_files_that_cannot_be_used_are_findings(spec_dir, entry, words):
 def test_without_a_reader_data_files_are_reported_not_read(check):
     (finding,) = check("laser:\n  spectrum: {file: x.csv}\n").findings
     assert finding.rule == "measured-data" and "not read" in finding.message
+
+
+@pytest.mark.parametrize("odd", ["1_0", "１０３０", "١٠٣٠"])
+def test_numbers_that_float_would_read_but_a_spec_refuses_are_refused_in_data_files(odd):
+    text = "".join(f"{i} {i}\n" for i in range(1, 12)) + f"{odd} 1\n"
+    with pytest.raises(measured.DataProblem, match="line 12"):
+        read_table(text)

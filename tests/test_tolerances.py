@@ -180,3 +180,13 @@ def test_the_sheet_shows_a_narrowed_bound_beside_its_text(tmp_path):
     run(["check", "--no-config", "--no-color", str(spec)], out, io.StringIO())
     row = next(line for line in out.getvalue().splitlines() if "pulse_energy" in line)
     assert "<= 80 µJ" in row and "[50 … 80] µJ" in row
+
+
+def test_typical_values_are_checked_through_derived_numbers_too(check):
+    # I = 2 · 0.9394 E/τ / (π w²) (Gaussian pulse and beam; relation table, by hand) = 3.99e11 W/cm²
+    # for 5 mJ, 30 fs and a 10 mm diameter: a stated 5.5e11 is 38 % high, within the wide intervals
+    result = check("laser: {wavelength: 800 nm, pulse_energy: 5 mJ, pulse_duration: 30 fs, pulse_shape: gaussian,"
+                   " beam_diameter: 10 mm, beam_profile: gaussian, peak_intensity: 5.5e11 W/cm^2}\n")
+    assert not [f for f in result.findings if f.severity == "error"]
+    (w,) = typical_warnings(result)
+    assert "3.987e11 W/cm²" in w.message and "+38%" in w.message

@@ -40,13 +40,18 @@ def report(col, margin: float = DEFAULT_MARGIN) -> None:
     own = {col.net.index[q] for q in col.stated if q not in col.carried and q not in col.measured}
     if not own:
         return
-    known = _nominals(col)
+    # the typical values stated, and every number they determine (w from D, P_pk from E and τ), so a
+    # relation that needs a derived number is checked as well
+    known = dict(col.nominal())
+    known.update(_nominals(col))
     names = col.net.names
     reported: set[int] = set()
     tolerance = math.log1p(margin)
     for rel, terms, ln_k in col.net.relations:
         if not all(i in known for i, _ in terms) or not any(i in own for i, _ in terms):
             continue
+        if rel.id == "time-bandwidth-product":
+            continue  # the product against the transform limit is a limit (``_limits``), said in its terms
         residual = sum(e * known[i] for i, e in terms) - ln_k
         if abs(residual) <= tolerance * max(abs(e) for _, e in terms):
             continue
@@ -58,15 +63,16 @@ def report(col, margin: float = DEFAULT_MARGIN) -> None:
         q = names[q_i]
         implied = exp(known[q_i] - residual / q_e)
         stated = col.stated[q]
-        others = [f"{col.keys.get(names[i], names[i])} {col.stated[names[i]].text}" for i, _ in terms
-                  if i != q_i and names[i] in col.stated]
+        others = [f"{col.keys.get(names[i], names[i])} {col.stated[names[i]].text}" if names[i] in col.stated
+                  else f"{names[i]} {col.show(names[i], exp(known[i]))} (from the stated values)"
+                  for i, _ in terms if i != q_i and names[i] not in DEFAULTS]
         col.report.add(
             "typical-values-disagree",
             f"{col.name}.{q} agrees with the rest only at the edges of the tolerances: with the stated "
             f"{join(others)}, {rel.formula.split('  (')[0]} gives {col.show(q, implied, stated.unit)}, not the "
             f"stated {stated.text} ({(stated.typical / implied - 1) * 100:+.2g}%)",
             col.at(q), quantities=[col.dotted(q)] + [col.dotted(names[i]) for i, _ in terms if i != q_i])
-    _limits(col, known, margin)
+    _limits(col, _nominals(col), margin)
     _bounds(col, known, margin)
 
 

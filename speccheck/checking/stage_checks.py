@@ -102,6 +102,11 @@ def _manley_rowe(walk, v: Visit, pump, s, i) -> None:
     else:
         lam_out = lam[1]
     limit = pump[1] / lam_out
+    if eff[0] <= limit * (1 + 1e-9) < eff[1]:  # the tolerance reaches below the limit, the typical value not
+        walk.report.add("typical-values-disagree",
+                        f"{v.name}: the typical energy efficiency {eff[1] * 100:.3g}% into the {output} is above "
+                        f"the {limit * 100:.3g}% that the Manley–Rowe relations allow (λp/λout); it holds only at "
+                        "the low edge of its tolerance", v.at + ("efficiency",), quantities=(f"{v.name}.efficiency",))
     if eff[0] > limit * (1 + 1e-9):
         walk.report.add("manley-rowe-limit",
                         f"{v.name}: an energy efficiency of {eff[1] * 100:.3g}% into the {output} at "
@@ -156,6 +161,8 @@ def focus_spot(walk, v: Visit) -> None:
     z = math.pi * w.value**2 / (m * lam.value)
     lo = math.pi * (w.low or w.value) ** 2 / (((m2.high if m2 and m2.high else m)) * (lam.high or lam.value))
     hi = math.pi * (w.high or w.value) ** 2 / (((m2.low if m2 and m2.low else m)) * (lam.low or lam.value))
+    if m2 is None or w.high is None:  # z_R grows with M² (w0 ∝ M²): unstated, it has no upper bound
+        hi = None
     cells["rayleigh_range"] = Cell("derived", lo, hi, z, "m", "mm")
 
 
@@ -184,8 +191,8 @@ def self_focusing(walk, v: Visit) -> None:
         radius = incident.get("beam_radius") or cells.get("beam_radius")
         length = params["thickness"][1]
         z_f = hazards.collapse_distance(peak.value, p_low, lam.value, n0, radius.value) \
-            if radius and radius.value else 0.0
-        if (peak.high or peak.value) > p_low and z_f < length:
+            if radius and radius.value else None  # no beam size: the collapse distance is not known
+        if (peak.high or peak.value) > p_low and z_f is not None and z_f < length:
             walk.report.add("self-focusing" if solid else "self-focusing-air",
                             f"{name}: the peak power {shown} is above the critical power for self-focusing "
                             f"and the beam collapses within the stage (Marburger's distance "
@@ -194,8 +201,11 @@ def self_focusing(walk, v: Visit) -> None:
         elif (peak.high or peak.value) > p_low:
             walk.report.add("self-focusing-risk",
                             f"{name}: the peak power {shown} is above the critical power for self-focusing, "
-                            f"{where}; the collapse distance {walk.show('beam_radius', z_f, 'mm')} is longer "
-                            "than the stage, so the B-integral decides", at, key=True,
+                            f"{where}; " + (f"the collapse distance {walk.show('beam_radius', z_f, 'mm')} is "
+                                            "longer than the stage, so the B-integral decides" if z_f is not None
+                                            else "without a beam size the collapse distance is not known: state "
+                                            "beam_diameter to tell whether the beam collapses in the stage"),
+                            at, key=True,
                             quantities=(f"{name}.peak_power",))
     before = walk.b_total(columns[:-1])
     if intensity and intensity.value:
@@ -281,7 +291,7 @@ def optic_damage(walk, v: Visit) -> None:
 
 CHECKS: dict[str, StageCheck] = {c.id: c for c in (
     StageCheck("photon-energy", "incident", photon_energy, "1/λp = 1/λs + 1/λi for a parametric stage",
-               ("photon-energy-not-conserved", "manley-rowe-limit")),
+               ("photon-energy-not-conserved", "manley-rowe-limit", "typical-values-disagree")),
     StageCheck("measured-spot", "incident", measured_spot, "a measured spot against the diffraction limit",
                ("spot-below-diffraction-limit",)),
     StageCheck("focus-spot", "column", focus_spot, "Rayleigh range and the paraxial limit of a focus",

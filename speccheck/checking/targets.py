@@ -135,7 +135,7 @@ def strong_field(walk, last: str, target, target_at: tuple) -> None:
     cells["ionization_potential"] = Cell("derived", ip, ip, ip, "J", "eV")
     cells["keldysh_parameter"] = Cell("derived", None, None, gamma, "1", "1")
     cells["hhg_cutoff_energy"] = Cell("derived", None, None, cutoff, "J", "eV")
-    bsi = hazards.barrier_suppression_intensity(ip, walk.c.units.constants)
+    bsi = hazards.barrier_suppression_intensity(ip, walk.c.units.constants, polarization=polarization)
     cells["barrier_suppression_intensity"] = Cell("derived", None, None, bsi, "W/m^2", "W/cm^2")
     if intensity.value > bsi:
         walk.report.add("above-barrier-suppression",

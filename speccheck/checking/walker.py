@@ -246,6 +246,7 @@ class PathWalk:
             incident = self.sheet.get(columns[-1], {})
             try:
                 out = kind.apply(beam, params, ctx)
+                _in_range(out)
             except NUMERIC_FAILURES as exc:
                 self.out_of_range(name, kind, here, exc)
                 return  # the beam after this stage is not known: the rest of the branch cannot follow
@@ -335,6 +336,20 @@ def _gdd_cell(v: tuple) -> Cell:
 
 
 NUMERIC_FAILURES = (OverflowError, ZeroDivisionError, ValueError, FloatingPointError)
+SI_RANGE = (1e-100, 1e100)  # as the value grammar's: what the relation table can work with
+
+
+def _in_range(beam: Beam) -> None:
+    """A stage that puts out a carried number beyond what a float holds sensibly (a chain of
+    gains reaching 1e300 W, a picker dividing a rate down to 0 Hz) has left its model's range."""
+    for q, (low, typ, high) in beam.values.items():
+        for x in (typ, high if math.isfinite(high) else None):
+            if x is None:
+                continue
+            if math.isnan(x) or x < 0 or (x != 0 and not SI_RANGE[0] <= x <= SI_RANGE[1]):
+                raise OverflowError(q)
+        if typ == 0.0 or (high == 0.0):
+            raise ZeroDivisionError(q)
 
 
 def _failure(exc: Exception) -> str:

@@ -18,6 +18,8 @@ VERSION = 1
 def _num(x: float | None) -> float | None:
     if x is None or x == 0.0:
         return None if x is None else 0.0
+    if not math.isfinite(x):
+        return None  # JSON has no infinity or NaN: an unbounded or unknown number is null
     rounded = float("%.15g" % x)
     return rounded if rounded not in (math.inf, -math.inf) else x  # 1.7976931348623157e308 rounds up
 
@@ -67,7 +69,7 @@ def _dumps(value) -> str:
 
 def _number_text(x: float | None) -> str:
     """The JSON text of ``_num(x)``, written directly (the sheet holds most of the numbers)."""
-    if x is None:
+    if x is None or not math.isfinite(x):
         return "null"
     if x == 0.0:
         return "0.0"

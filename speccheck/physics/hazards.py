@@ -96,12 +96,14 @@ def vector_potential(intensity: float, wavelength: float, k, polarization: str =
     return a0 / math.sqrt(2.0) if polarization == "circular" else a0
 
 
-def barrier_suppression_intensity(ionization: float, k, charge: int = 1) -> float:
+def barrier_suppression_intensity(ionization: float, k, charge: int = 1, polarization: str = "linear") -> float:
     """The intensity (W/m²) at which the laser field lowers the Coulomb barrier below the ground
     state: F = π ε0 I_p² / (Z e³), I = c ε0 F² / 2 (S. Augst et al., Phys. Rev. Lett. 63, 2212
     (1989); ≈ 4e9 (I_p/eV)⁴ / Z² W/cm²).  Above it the atom is ionized over the barrier."""
     field = math.pi * k.eps0 * ionization**2 / (charge * k.e**3)
-    return 0.5 * k.c * k.eps0 * field**2
+    # the peak field must reach F: linear light of intensity c ε0 F²/2 does at its crests; circular
+    # light holds |E| = F all the time, which takes c ε0 F² (twice the intensity)
+    return (1.0 if polarization == "circular" else 0.5) * k.c * k.eps0 * field**2
 
 
 def keldysh(ionization: float, up: float) -> float:

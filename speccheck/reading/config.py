@@ -97,7 +97,7 @@ def find(start: Path) -> Path | None:
     folder = start.absolute()
     while True:
         candidate = folder / CONFIG_FILE
-        if candidate.is_file():
+        if os.path.lexists(candidate):  # found, so it is the configuration: one that is not a file is reported
             return candidate
         pyproject = folder / PYPROJECT
         if pyproject.is_file():

@@ -13,6 +13,7 @@ Nothing here raises on bad input: every problem becomes a ``Problem``.
 
 from __future__ import annotations
 
+import re
 from dataclasses import dataclass, field
 
 import yaml
@@ -77,6 +78,10 @@ _SAFE_SCALARS = {
     "tag:yaml.org,2002:null",
 }
 _AS_TEXT = {"tag:yaml.org,2002:timestamp", "tag:yaml.org,2002:binary"}
+_NUMBERS = {"tag:yaml.org,2002:int", "tag:yaml.org,2002:float"}
+# a number as people write one: decimal digits, a point, an exponent (and YAML's .inf and .nan,
+# which the value grammar refuses with its own message)
+_DECIMAL = re.compile(r"^[-+]?(?:[0-9]+(?:\.[0-9]*)?|\.[0-9]+)(?:[eE][-+]?[0-9]+)?$|^[-+]?\.(?:inf|Inf|INF|nan|NaN|NAN)$")
 _STR = "tag:yaml.org,2002:str"
 _MAP = "tag:yaml.org,2002:map"
 _SEQ = "tag:yaml.org,2002:seq"
@@ -165,6 +170,10 @@ class _Builder:
             return node.value  # most scalars: what the constructor would return, without the call
         if node.tag in _AS_TEXT:
             return str(node.value)
+        if node.tag in _NUMBERS and not node.style and not _DECIMAL.match(node.value):
+            # YAML 1.1 reads 1:30 as 90 (base 60), 1_1 as 11, 0b1 as 1, 0o7 and 0x1f as numbers:
+            # kept as the text written, so the value grammar says what it expected
+            return node.value
         if node.tag not in _SAFE_SCALARS:
             self.problem("unsupported-yaml-tag", f"tag {node.tag!r} is not allowed in a spec "
                          "(speccheck never constructs objects from input)", node)

@@ -21,6 +21,7 @@ to accept what Python's ``float`` reads but numpy does not, such as
 from __future__ import annotations
 
 import io
+import re
 import warnings
 
 import numpy as np
@@ -34,13 +35,22 @@ _SEPARATORS = bytes.maketrans(b",;\t", b"   ")
 __all__ = ["DataProblem", "MAX_ROWS", "MIN_POINTS", "read_table"]
 
 
+# digits other than 0-9 (١٠٣٠, １０３０) and digit groups joined by '_' (9_90): float() reads them
+_ODD_NUMBER = re.compile(r"[0-9]_[0-9]|(?![0-9])\d")
+
+
 def read_table(data: bytes | str) -> tuple[np.ndarray, np.ndarray]:
     """The first two columns of a data file as float arrays (see the module's docstring)."""
     raw = data.encode("utf-8", errors="replace") if isinstance(data, str) else bytes(data)
     raw = raw.removeprefix(b"\xef\xbb\xbf")  # a UTF-8 byte order mark is not part of the first field
     if b"\r" in raw:
         raw = raw.replace(b"\r\n", b"\n").replace(b"\r", b"\n")
-    stream = io.StringIO(raw.translate(_SEPARATORS).decode("utf-8", errors="replace"))
+    text = raw.translate(_SEPARATORS).decode("utf-8", errors="replace")
+    odd = _ODD_NUMBER.search(text)
+    if odd:  # float() would read ١٠٣٠, １０３０ and 9_90 as numbers; a spec's values refuse them too
+        line = text.count("\n", 0, odd.start()) + 1
+        raise DataProblem(f"line {line}: {odd.group()!r} is not a plain number (digits 0-9 only, no '_')")
+    stream = io.StringIO(text)
     _skip_header(stream)
     try:
         with warnings.catch_warnings():

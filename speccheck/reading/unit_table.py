@@ -13,6 +13,7 @@ import math
 from speccheck.reading.unit_text import CONSTANT_NAMES, DIMENSION_NAMES, Unit, UnitError, screen_unit_text
 
 MAX_TABLE = 2000  # unit texts remembered on disk
+MAX_TABLE_BYTES = 1024 * 1024  # a larger table is not read (this version writes about 0.2 MB at most)
 
 
 def path():
@@ -104,9 +105,14 @@ class _Lock:
 def _read(table_path) -> dict | None:
     import json
 
+    from speccheck.reading.disk import read_regular
+
     try:
-        data = json.loads(table_path.read_text("utf-8"))
-    except (OSError, ValueError, RecursionError):
+        raw = read_regular(table_path, MAX_TABLE_BYTES)  # a FIFO or a device there is refused, not read
+        if len(raw) > MAX_TABLE_BYTES:
+            return None
+        data = json.loads(raw.decode("utf-8"))
+    except (OSError, ValueError, RecursionError, MemoryError):
         return None  # no table yet, or a damaged one: pint answers and the table is written anew
     return data if isinstance(data, dict) else None
 

@@ -55,8 +55,14 @@ class AngularUnit(UnitError):
 # Logarithmic units: pint converts "1 dBm" to 1.26 mW, and a number in front would then be
 # scaled linearly (30 dBm as 37.8 mW instead of 1 W).  They never reach pint; values.py
 # converts the plain ones (dB, dBm, dBW) as logarithms.
-_LOGARITHMIC = re.compile(r"(?<![A-Za-z])(?:dB[A-Za-z]*|Np|neper|nepers|decibels?|bels?|B)(?![A-Za-z])")
-_RADIAN = re.compile(r"(?<![A-Za-z])(?:[mµu]?rad|radians?)(?![A-Za-z])")
+_LOGARITHMIC = re.compile(r"(?<![A-Za-z])(?:dB[A-Za-z]*|Np|neper|nepers|decibels?|bels?|B|octaves?|decades?)"
+                          r"(?![A-Za-z])")
+# Angles and turns: pint counts them as pure numbers (1 turn = 2π, 1 cycle = 2π), so a unit with
+# one in it would be read 2π (or 180/π …) off; they are refused wherever they appear.
+_PREFIX = r"(?:[yzafpnuµmcdhkMGTPEZY]|da|kilo|mega|giga|tera|peta|milli|micro|nano|pico|femto)?"
+_RADIAN = re.compile(r"(?<![A-Za-z])" + _PREFIX + r"(?:rad|radians?|turns?|revolutions?|rev|cycles?|rps|rpm|"
+                     r"deg|degrees?|grad|gradians?|gon|arcsec|arcmin|arcseconds?|arcminutes?|sr|steradians?)"
+                     r"(?![A-Za-z])")
 
 
 @dataclass(frozen=True)

@@ -12,6 +12,7 @@ CODATA values here and nowhere else.
 from __future__ import annotations
 
 import math
+import re
 from functools import lru_cache
 
 from speccheck.reading import unit_table
@@ -94,8 +95,11 @@ class UnitSystem:
         known = self._table.get(shown)
         if known is None:
             known = self._from_pint(shown)
-        if known.dimension in ("Hz", "1/m") and _RADIAN.search(shown):
-            raise AngularUnit(shown, known.factor, known.dimension)
+        if _RADIAN.search(shown):
+            if known.dimension in ("Hz", "1/m") and re.search(r"rad", shown):
+                raise AngularUnit(shown, known.factor, known.dimension)
+            raise UnitError(f"{shown!r} holds an angle or a count of turns or cycles, which pint reads as a pure "
+                            "number (1 turn = 2π): write the value without it (a frequency in Hz)")
         return known
 
     def _from_pint(self, shown: str) -> Unit:

@@ -107,6 +107,8 @@ class Tolerances:
             for n in names:
                 if n in table:
                     return table[n]
+        if builtin == 0.0:  # exact by its nature (a whole number of pulses, a harmonic order)
+            return 0.0
         for value in (self.spec_global, self.config_global):
             if value is not None:
                 return value
@@ -188,6 +190,9 @@ class ValueParser:
     def _parse_plus_minus(self, key: str, main: str, tol: str, text: str) -> Stated:
         number, unit = self._number_and_unit(key, main, text)
         tol_number, tol_unit = self._number_and_unit(key, tol, text)
+        if (unit or "").strip() in _LOG_UNITS or (tol_unit or "").strip() in _LOG_UNITS:
+            return self._log_plus_minus(key, number, (unit or tol_unit).strip(), tol_number,
+                                        (tol_unit or "").strip(), text)
         if tol_number < 0 or not math.isfinite(tol_number):
             raise ValueProblem("invalid-value", f"{key}: the ± part of {text.strip()!r} must be a non-negative number")
         if tol_unit in ("%", "percent"):
@@ -316,6 +321,17 @@ class ValueParser:
                                f"handles ({SI_RANGE[0]:g} to {SI_RANGE[1]:g} in SI units)")
         return names[parsed.dimension], si, parsed.text
 
+
+    def _log_plus_minus(self, key, number: float, unit: str, tol: float, tol_unit: str, text: str) -> Stated:
+        """"30 dBm ± 1 dB": the ± is a ratio in dB, so the interval is 10^((x ∓ t)/10) — uneven in
+        watts.  A ± in dBm or dBW (a power, not a ratio) says nothing that adds up, and is refused."""
+        if unit not in _LOG_UNITS or tol_unit != "dB" or tol < 0:
+            raise ValueProblem("invalid-value", f"{key}: in {text.strip()!r} the ± of a value in {unit} must be a "
+                               f"ratio in dB, like '30 dBm ± 1 dB'")
+        quantity, low, _ = self._to_si(key, number - tol, unit, text)
+        _, high, _ = self._to_si(key, number + tol, unit, text)
+        _, typical, unit_text = self._to_si(key, number, unit, text)
+        return Stated(quantity, low, high, typical, unit_text, text.strip())
 
     def _logarithmic(self, key, number: float, unit: str, names: dict, text: str):
         """A value in dB, dBm or dBW, converted as a logarithm (30 dBm = 1 W; a 30 dB gain = ×1000)."""

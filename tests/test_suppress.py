@@ -196,3 +196,19 @@ def test_a_conflict_is_suppressed_from_the_line_of_any_value_it_concerns(tmp_pat
     rules = [f["rule"] for f in json.loads(out.getvalue())["files"][0]["findings"]]
     assert "relation-conflict" not in rules  # reported at line 5 (the energy), suppressed at line 4
     assert "unused-suppression" not in rules  # and the suppression counts as used
+
+
+def test_a_typical_value_warning_is_suppressed_from_the_line_of_a_value_it_concerns(tmp_path):
+    import io
+    import json
+
+    from speccheck.cli import run
+
+    spec = tmp_path / "s.yaml"
+    spec.write_text("spec_version: 1\nlaser:\n  repetition_rate: 1 MHz\n"
+                    "  average_power: 20 W  # speccheck: allow typical-values-disagree -- the meter reads low\n"
+                    "  pulse_energy: 21 µJ\n", encoding="utf-8")
+    out = io.StringIO()
+    run(["check", "--no-config", "--format", "json", str(spec)], out, io.StringIO())
+    rules = [f["rule"] for f in json.loads(out.getvalue())["files"][0]["findings"]]
+    assert "typical-values-disagree" not in rules and "unused-suppression" not in rules

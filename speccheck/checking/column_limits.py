@@ -44,7 +44,8 @@ def report_limits(col, cells: dict[str, Cell]) -> None:
             f"{col.name}.{q} is {col.show_interval(q, cell.low, cell.high, cell.value)}{origin}, {relation} "
             f"{bound_text}: {limit.consequence}.",
             col.at(where), quantities=[col.dotted(q)] + sorted(
-                col.dotted(col.net.names[k]) for k in support if col.net.names[k] != q))
+                col.dotted(col.net.names[k]) for k in support if col.net.names[k] != q),
+            related=[col.at(col.net.names[k]) for k in support if col.net.names[k] in col.stated])
 
 
 _BANDWIDTHS = ("spectral_bandwidth", "spectral_bandwidth_wavelength", "spectral_bandwidth_wavenumber")

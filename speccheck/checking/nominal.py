@@ -71,7 +71,8 @@ def report(col, margin: float = DEFAULT_MARGIN) -> None:
             f"{col.name}.{q} agrees with the rest only at the edges of the tolerances: with the stated "
             f"{join(others)}, {rel.formula.split('  (')[0]} gives {col.show(q, implied, stated.unit)}, not the "
             f"stated {stated.text} ({(stated.typical / implied - 1) * 100:+.2g}%)",
-            col.at(q), quantities=[col.dotted(q)] + [col.dotted(names[i]) for i, _ in terms if i != q_i])
+            col.at(q), quantities=[col.dotted(q)] + [col.dotted(names[i]) for i, _ in terms if i != q_i],
+            related=[col.at(names[i]) for i, _ in terms if names[i] in col.stated])
     _limits(col, _nominals(col), margin)
     _bounds(col, known, margin)
 
@@ -110,7 +111,8 @@ def _limits(col, known: dict, margin: float) -> None:
             f"{join(f'{col.keys.get(n, n)} {col.stated[n].text}' for n in sorted(own))}, {q} is "
             f"{col.show(q, value)}, {'below' if limit.side == 'min' else 'above'} "
             f"{limit.what.format(shape=col.context.shape.name)} ({col.show(q, bound)}): {limit.consequence}",
-            col.at(where), quantities=[col.dotted(q)] + [col.dotted(n) for n in sorted(own)])
+            col.at(where), quantities=[col.dotted(q)] + [col.dotted(n) for n in sorted(own)],
+            related=[col.at(n) for n in own])
 
 
 def _bounds(col, known: dict, margin: float) -> None:

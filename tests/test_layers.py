@@ -184,7 +184,12 @@ def test_the_schema_names_every_stage_kind_and_parameter_and_nothing_else():
 def test_the_schema_is_found_in_a_source_tree_that_is_not_installed(monkeypatch):
     from importlib import resources
 
+    import pytest
+
     from speccheck.reading import schema
+
+    if not (Path(schema.__file__).resolve().parents[2] / "schemas").is_dir():
+        pytest.skip("speccheck is installed here, not run from its source tree")
 
     def missing(name):
         raise ModuleNotFoundError(name)

@@ -47,8 +47,10 @@ def report(col, margin: float = DEFAULT_MARGIN) -> None:
     names = col.net.names
     reported: set[int] = set()
     tolerance = math.log1p(margin)
-    for rel, terms, ln_k in col.net.relations:
-        if not all(i in known for i, _ in terms) or not any(i in own for i, _ in terms):
+    relations = col.net.relations
+    for r in sorted({r for i in own for r in col.net.touching[i]}):  # the relations a stated value is in
+        rel, terms, ln_k = relations[r]
+        if not all(i in known for i, _ in terms):
             continue
         if rel.id == "time-bandwidth-product":
             continue  # the product against the transform limit is a limit (``_limits``), said in its terms

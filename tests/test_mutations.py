@@ -200,6 +200,15 @@ def _pick_match(rng, pattern: re.Pattern, s: str, group: int = 0):
     return rng.choice(found) if found else None
 
 
+def _pick_line_and_match(rng, doc: Doc, pattern: re.Pattern, group: int):
+    """A random line matching ``pattern`` and a random match on it, or None."""
+    i = doc.pick_line(rng, pattern.pattern)
+    if i is None:
+        return None
+    m = _pick_match(rng, pattern, doc.lines[i], group)
+    return None if m is None else (i, m)
+
+
 def _values(doc: Doc):
     return [(i, m) for i, s in enumerate(doc.lines) if not s.lstrip().startswith("#")
             for m in KEY_VALUE.finditer(s)]
@@ -239,12 +248,10 @@ def m_swap_unit(rng, doc):
 
 
 def m_misspell_unit(rng, doc):
-    i = doc.pick_line(rng, UNIT_AFTER_NUMBER.pattern)
-    if i is None:
+    found = _pick_line_and_match(rng, doc, UNIT_AFTER_NUMBER, 2)
+    if found is None:
         return None
-    m = _pick_match(rng, UNIT_AFTER_NUMBER, doc.lines[i], 2)
-    if m is None:
-        return None
+    i, m = found
     u = m.group(2)
     k = rng.randrange(len(u))
     how = rng.choice(["drop", "double", "case", "swap", "greek"])
@@ -486,12 +493,10 @@ def m_control(rng, doc):
 
 
 def m_control_key(rng, doc):
-    i = doc.pick_line(rng, KEY.pattern)
-    if i is None:
+    found = _pick_line_and_match(rng, doc, KEY, 1)
+    if found is None:
         return None
-    m = _pick_match(rng, KEY, doc.lines[i], 1)
-    if m is None:
-        return None
+    i, m = found
     if rng.random() < 0.7:
         esc = rng.choice(CONTROL_ESCAPES)
         new = '"' + (m.group(1) + esc if rng.random() < 0.5 else esc + m.group(1)) + '"'
@@ -554,12 +559,10 @@ def m_long_string(rng, doc):
 
 
 def m_misspell_key(rng, doc):
-    i = doc.pick_line(rng, KEY.pattern)
-    if i is None:
+    found = _pick_line_and_match(rng, doc, KEY, 1)
+    if found is None:
         return None
-    m = _pick_match(rng, KEY, doc.lines[i], 1)
-    if m is None:
-        return None
+    i, m = found
     k = m.group(1)
     j = rng.randrange(len(k))
     new = rng.choice([k[:j] + k[j + 1:], k[:j] + k[j] + k[j:], k.upper(), k.replace("_", "-"),

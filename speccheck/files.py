@@ -151,12 +151,6 @@ def read_spec(path: Path, max_bytes: int) -> bytes:
     return read_regular(path, max_bytes)
 
 
-def regular(path: Path) -> bool:
-    import stat
-
-    return stat.S_ISREG(path.stat().st_mode)
-
-
 def read_failure(name: str, exc: OSError) -> FileResult:
     reason = exc.strerror or type(exc).__name__
     if isinstance(exc, IsADirectoryError):

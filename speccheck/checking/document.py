@@ -24,8 +24,6 @@ from speccheck.physics.shapes import BEAM_PROFILES, DEFAULT_SHAPE, PULSE_SHAPES
 from speccheck.reading.units import UnitSystem
 from speccheck.reading.values import Tolerances, ValueParser, ValueProblem, parse_tolerance, tolerance_names
 
-DEFAULT_TOLERANCE = 0.05
-
 
 @dataclass(frozen=True)
 class Options:

@@ -167,7 +167,7 @@ def test_the_plots_are_inline_svg_with_unique_ids(tmp_path):
     ids = [a["id"] for _, a in page.tags if "id" in a]
     assert len(ids) == len(set(ids))
     # the pulse at the laser and at the last column of each branch, with the sheet's durations
-    assert "laser 35 fs; pump_lens 24.75 fs; probe_lens 56.85 fs" in page.plain
+    assert "laser 35 fs; pump_lens 24.75 fs; probe_lens 56.83 fs" in page.plain
     # the pump arm's second harmonic is D/√2 across (the square of a Gaussian profile), so its focus
     # is √2 wider than a beam of the fundamental's size would give at 515 nm
     assert "pump_lens: w0 14.04 µm" in page.plain and "probe_lens: w0 66.21 µm" in page.plain

@@ -87,7 +87,7 @@ def test_a_chirped_laser_pulse_carries_its_own_gdd(check):
     # 30 nm at 800 nm gives τ_TL = 0.4413/14.05 THz = 31.4 fs; a 35 fs pulse carries
     # φ = τ0²/(4 ln2) √((τ/τ0)² − 1) = 175 fs² (positive chirp assumed); by hand.
     r = check(LASER.replace("pulse_duration: 30 fs", "pulse_duration: 35 fs\n  spectral_bandwidth: 30 nm")
-              + "path:\n  - {name: m, kind: optic}\n")
+              + "path:\n  - {name: m, kind: dispersion, gdd: 0 fs^2}\n")
     tl = 0.4413 / (299792458 * 30e-9 / 800e-9**2)
     phi = tl**2 / (4 * math.log(2)) * math.sqrt((35e-15 / tl) ** 2 - 1)
     assert cell(r, "net_gdd", "m").value == pytest.approx(phi, rel=2e-3)

@@ -185,6 +185,7 @@ def test_every_relation_is_exercised_by_a_test_in_this_module():
                  "duty-cycle": "duty_cycle", "carrier-frequency": "carrier_frequency",
                  "carrier-period": "carrier_period", "photon-energy": "photon_energy",
                  "cycles-per-pulse": "cycles_per_pulse", "peak-power": "peak_power",
+                 "main-peak": "energy_in_main_peak",
                  "bandwidth-wavelength": "spectral_bandwidth", "bandwidth-wavenumber": "wavenumber",
                  "time-bandwidth-product": "transform_limit", "autocorrelation-width": "autocorrelation_width",
                  "beam-radius": "beam_radius", "beam-fwhm": "beam_diameter_fwhm",
@@ -194,6 +195,27 @@ def test_every_relation_is_exercised_by_a_test_in_this_module():
     assert {r.id for r in RELATIONS} == set(exercised)
     for needle in exercised.values():
         assert needle in text
+
+
+def test_a_pulse_with_a_pedestal_has_the_peak_power_of_its_main_peak(check):
+    # By hand: P_pk = a_shape · η · E/τ = 0.8814 × 0.7 × 10 nJ / 100 fs = 61.7 kW (sech², 70 % in the
+    # main peak); a = 0.617.
+    laser = "pulse_energy: 10 nJ\npulse_duration: 100 fs\npulse_shape: sech2\n"
+    assert derived(check, laser + "energy_in_main_peak: 70%", "peak_power") == pytest.approx(
+        0.8814 * 0.7 * 1e-8 / 1e-13, rel=1e-3)
+    assert derived(check, laser + "energy_in_main_peak: 70%", "peak_power_factor") == pytest.approx(
+        0.8814 * 0.7, rel=1e-3)
+    # the ideal shape is the default: η = 1, a = 0.8814
+    assert derived(check, laser, "peak_power_factor") == pytest.approx(0.8814, rel=1e-3)
+
+
+def test_a_maker_peak_power_that_allows_for_a_pedestal_is_consistent_once_it_says_so(check):
+    # 61.7 kW for 10 nJ and 100 fs is 70 % of the ideal sech² pulse's 88.1 kW: a conflict for the
+    # ideal shape, consistent with energy_in_main_peak 70 % or a stated peak_power_factor 0.617
+    laser = "laser:\n  pulse_energy: 10 nJ\n  pulse_duration: 100 fs\n  pulse_shape: sech2\n  peak_power: 61.7 kW\n"
+    assert "relation-conflict" in {f.rule for f in check(laser).findings}
+    for extra in ("  energy_in_main_peak: 70%\n", "  peak_power_factor: 0.617\n"):
+        assert not [f for f in check(laser + extra).findings if f.severity == "error"]
 
 
 def test_average_intensity(check):

@@ -6,7 +6,7 @@ from __future__ import annotations
 import math
 from speccheck.checking.engine import implied
 from speccheck.checking.logspace import centre, exp
-from speccheck.physics.quantities import BY_NAME, DEFAULTS
+from speccheck.physics.quantities import BY_NAME
 from speccheck.reading.units import choose_unit
 from speccheck.records.findings import Cell
 
@@ -55,7 +55,7 @@ def build(col) -> dict[str, Cell]:
             unit = choose_unit(col.c.units, ref, quantity.display_unit)
             out[q] = Cell("derived", low, high, value, quantity.si_unit, unit)
     derived_from = [col.net.index[c] for c in out]
-    for q, value in DEFAULTS.items():
+    for q, value in col.defaults.items():
         if q not in out and d.state.uses_quantity(derived_from, col.net.index[q]):
             out[q] = Cell("derived", value, value, value, BY_NAME[q].si_unit, "1", assumed=True)
     return {q: out[q] for q in names if q in out}

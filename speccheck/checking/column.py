@@ -18,7 +18,7 @@ from speccheck.checking.engine import Network, diagnose, evaluate, network_for
 from speccheck.checking.logspace import ln
 from speccheck.checking.wording import format_ratio, join
 from speccheck.records.findings import Cell
-from speccheck.physics.quantities import ALIASES, BY_NAME, CATEGORICAL, DEFAULTS, MEASURED, QUANTITIES
+from speccheck.physics.quantities import ALIASES, BY_NAME, CATEGORICAL, MEASURED, QUANTITIES, defaults_for
 from speccheck.physics.shapes import BEAM_PROFILES, DEFAULT_PROFILE, DEFAULT_SHAPE, PULSE_SHAPES
 from speccheck.reading.units import choose_unit, format_quantity
 from speccheck.reading.values import Stated, ValueProblem
@@ -120,10 +120,10 @@ class BlockCheck:
         idx = self.net.index
         self.log_stated = {idx[q]: (ln(s.low), ln(s.high)) for q, s in self.stated.items()}
         fixed = set()
-        for q, value in DEFAULTS.items():
-            if q not in self.stated:
-                self.log_stated[idx[q]] = (math.log(value), math.log(value))
-                fixed.add(idx[q])
+        self.defaults = defaults_for(self.stated)
+        for q, value in self.defaults.items():
+            self.log_stated[idx[q]] = (math.log(value), math.log(value))
+            fixed.add(idx[q])
         self.fixed = frozenset(fixed | {idx[q] for q in self.measured})
         self.diagnosis = diagnose(self.net, self.log_stated, self.fixed)
         conflicts.report(self)
@@ -196,7 +196,7 @@ class BlockCheck:
         names = [self.net.names[i] for i in sorted(support, key=lambda i: self.net.names[i])]
         parts = [f"{q if self.keys[q] in MEASURED else self.keys[q]} {self.stated[q].text}"
                  for q in names if q in self.stated and q not in leave_out]
-        parts += [f"{q} {DEFAULTS[q]:g} (default)" for q in names if q not in self.stated and q in DEFAULTS]
+        parts += [f"{q} {self.defaults[q]:g} (default)" for q in names if q in self.defaults]
         return join(parts)
 
     def nominal(self, exclude=()) -> dict:
@@ -212,7 +212,7 @@ class BlockCheck:
         idx = self.net.index
         known = {idx[q]: math.log(s.typical) for q, s in self.stated.items()
                  if s.typical is not None and s.typical > 0.0 and idx[q] not in exclude}
-        known |= {idx[q]: math.log(v) for q, v in DEFAULTS.items() if q not in self.stated}
+        known |= {idx[q]: math.log(v) for q, v in self.defaults.items()}
         return evaluate(self.net, known)
 
     # ---------------------------------------------------------------- sheet

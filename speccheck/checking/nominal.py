@@ -30,7 +30,7 @@ def _nominals(col) -> dict[int, float]:
     idx = col.net.index
     known = {idx[q]: math.log(s.typical) for q, s in col.stated.items()
              if s.typical is not None and s.typical > 0.0 and s.low < s.high * (1 - 1e-12)}
-    known |= {idx[q]: math.log(v) for q, v in DEFAULTS.items() if q not in col.stated}
+    known |= {idx[q]: math.log(v) for q, v in col.defaults.items()}
     return known
 
 

@@ -89,18 +89,25 @@ def costliest(walk, columns: list, need: Stated) -> str:
 
 
 def compensation(walk, last: str, beam: Beam, at: tuple) -> None:
-    """The GDD that would give the shortest pulse at the end of this branch."""
-    net, tl = beam.net_gdd, beam.tl_duration
+    """The GDD and TOD that would give the highest peak power at the end of this branch."""
+    made = beam.pulse
     tau = beam.get("pulse_duration")
-    if not tl or not tau or not typical(tl) or not typical(tau) or typical(tau) < 1.05 * typical(tl):
+    if made is None or not tau or not typical(tau):
         return
-    if not any(k for k in walk.sheet.get(last, {}) if k == "net_gdd"):
+    tl = made.envelope.tl
+    if typical(tau) < 1.05 * tl:
         return
+    try:
+        gdd, tod = made.compensation()
+    except (ValueError, OverflowError, ZeroDivisionError, FloatingPointError):
+        return
+    net = made.numbers.net
+    tod_text = f" and {tod * 1e45:.4g} fs³" if abs(tod) * (4.0 / tl) ** 3 / 6.0 >= 0.01 else ""
     walk.report.add("dispersion-compensation",
                     f"at {last!r} the pulse is {walk.show('pulse_duration', typical(tau), 'fs')} against "
-                    f"{walk.show('pulse_duration', typical(tl), 'fs')} transform-limited: the net GDD "
-                    f"there is {net[1] * 1e30:.4g} fs²; adding {-net[1] * 1e30:.4g} fs² (a compressor or "
-                    "prechirp) would give the shortest pulse", at, key=True)
+                    f"{walk.show('pulse_duration', tl, 'fs')} transform-limited: the net GDD there is "
+                    f"{net[0][1] * 1e30:.4g} fs² (TOD {net[1][1] * 1e45:.4g} fs³); adding {gdd * 1e30:.4g} fs²"
+                    f"{tod_text} (a compressor or prechirp) would give the highest peak power", at, key=True)
 
 
 def strong_field(walk, last: str, target, target_at: tuple) -> None:

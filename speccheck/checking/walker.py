@@ -18,11 +18,12 @@ from dataclasses import replace
 
 from speccheck.checking import targets, wording
 from speccheck.checking.column import BlockCheck
-from speccheck.checking.stage_checks import CHECKS, Visit, checks_of, interval
+from speccheck.checking.laser_pulse import beam_from, laser_chirp
+from speccheck.checking.stage_checks import CHECKS, Visit, checks_of
 from speccheck.physics import hazards, materials
 from speccheck.physics.quantities import BY_NAME
 from speccheck.physics.shapes import DEFAULT_SHAPE, PULSE_SHAPES
-from speccheck.physics.stages import CARRIED, PARAM_TOLERANCES, STAGE_KINDS, Beam, StageContext, intrinsic_gdd, point, scaled, typical
+from speccheck.physics.stages import PARAM_TOLERANCES, STAGE_KINDS, Beam, StageContext, point, scaled
 from speccheck.reading.units import choose_unit, format_quantity
 from speccheck.reading.values import Stated, ValueProblem
 from speccheck.records.findings import Cell
@@ -32,21 +33,7 @@ _STAGE_KEYS = _FIXED_KEYS | {"branches"} | {p.name for k in STAGE_KINDS.values()
     key for c in CHECKS.values() for key in c.keys}
 
 
-def beam_from(cells: dict, old: Beam | None, shape_limit: float | None) -> Beam:
-    values = {q: interval(cells[q]) for q in CARRIED if q in cells}
-    if old is not None:
-        return replace(old, values=values, stage_gdd=None)
-    if "transform_limited_duration" in cells:
-        tl = interval(cells["transform_limited_duration"])
-    elif shape_limit is not None and "spectral_bandwidth" in cells and typical(values["spectral_bandwidth"]):
-        bw = values["spectral_bandwidth"]
-        tl = (shape_limit / bw[2], shape_limit / typical(bw), shape_limit / bw[0] if bw[0] else math.inf)
-    elif "pulse_duration" in values:
-        tl = values["pulse_duration"]
-    else:
-        tl = None
-    net = intrinsic_gdd(values["pulse_duration"], tl) if tl and "pulse_duration" in values else (0.0, 0.0, 0.0)
-    return Beam(values, net, tl)
+_SIGNED = ("s^2", "s^3", "s^4")
 
 
 class PathWalk:
@@ -114,7 +101,7 @@ class PathWalk:
                 continue
             try:
                 s = self.c.values.parse_as(label, raw, p.dimension, self.param_tolerance(p.name),
-                                           signed=p.dimension in ("s^2", "s^3"))
+                                           signed=p.dimension in _SIGNED)
             except ValueProblem as e:
                 self.report.add(e.rule, e.message, at + (p.name,), quantities=(label,))
                 ok = False
@@ -124,7 +111,7 @@ class PathWalk:
                                 f"{', '.join(f'{c:g}' for c in p.choices)}", at + (p.name,))
                 ok = False
                 continue
-            signed = p.dimension in ("s^2", "s^3")
+            signed = p.dimension in _SIGNED
             low, typ, high = s.low, s.typical, s.high
             if typ is None:  # a bound or {min, max}: a stage needs both ends, and works on the middle
                 if not math.isfinite(high) or (low <= 0.0 and not signed) or s.text.lstrip()[:1] in "<>≤≥=":
@@ -181,12 +168,17 @@ class PathWalk:
         check = BlockCheck(self.c, name, block, self.tolerance, self.report, paths, inherited, notes=False)
         check.before = self.sheet.get(before, {})  # a limit it broke already is reported there only
         cells = check.run()
-        if beam.net_gdd != (0.0, 0.0, 0.0) or beam.stage_gdd is not None:
-            if beam.stage_gdd is not None:
-                cells["stage_gdd"] = _gdd_cell(beam.stage_gdd)
-            cells["net_gdd"] = _gdd_cell(beam.net_gdd)
-        if beam.net_tod != (0.0, 0.0, 0.0):
-            cells["net_tod"] = Cell("derived", beam.net_tod[0], beam.net_tod[2], beam.net_tod[1], "s^3", "fs^3")
+        if beam.stage_gdd is not None:
+            cells["stage_gdd"] = _gdd_cell(beam.stage_gdd)
+        if beam.pulse is not None:
+            n = beam.pulse.numbers
+            (gdd, tod, fod), main = n.net, n.main_peak
+            cells["net_gdd"] = _gdd_cell(gdd)
+            if tod != (0.0, 0.0, 0.0):
+                cells["net_tod"] = Cell("derived", tod[0], tod[2], tod[1], "s^3", "fs^3")
+            if abs(fod[1]) > 0.0:
+                cells["net_fod"] = Cell("derived", fod[0], fod[2], fod[1], "s^4", "fs^4")
+            cells["energy_in_main_peak"] = Cell("derived", main[0], main[2], main[1], "1", "1")
         return cells
 
     def param_tolerance(self, name: str) -> float:
@@ -217,7 +209,9 @@ class PathWalk:
         laser_cells = self.sheet.get("laser", {})
         notes: list = []
         ctx = self.stage_context(notes)
-        beam = beam_from(laser_cells, None, ctx.transform_limit)
+        shape = self.categorical.get("pulse_shape", DEFAULT_SHAPE)
+        beam = beam_from(laser_cells, None, ctx.transform_limit, shape if shape in PULSE_SHAPES else DEFAULT_SHAPE,
+                         laser_chirp(self))
         self.walk(self.data.get("path"), ("path",), beam, ["laser"], self.data.get("target"), ("target",))
         self.report.dedupe = False
 

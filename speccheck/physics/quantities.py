@@ -62,6 +62,13 @@ QUANTITIES: tuple[Quantity, ...] = (
              tolerance=0.05, tolerance_why="a pyroelectric energy meter, or power over rate: about 5% (common practice)"),
     Quantity("peak_power", "W", "P_pk", "MW", "peak power of the temporal profile",
              tolerance=0.1, tolerance_why="computed from energy and duration: as the duration, about 10%"),
+    Quantity("peak_power_factor", "1", "a", "1",
+             "P_pk·τ/E of the temporal profile (the shape's constant, or the field's after dispersion)", True,
+             secondary=True,
+             tolerance=0.02, tolerance_why="the integral of a measured or modelled profile: about 2% (common practice)"),
+    Quantity("energy_in_main_peak", "1", "η", "1",
+             "share of the pulse energy in the main peak (the rest in a pedestal or satellites)", True,
+             tolerance=0.05, tolerance_why="from a measured trace's integral: about 5% (common practice)"),
     Quantity("spectral_bandwidth", "Hz", "Δν", "THz", "spectral FWHM in frequency",
              tolerance=0.05, tolerance_why="a spectrometer FWHM: about 5% (common practice)"),
     Quantity("spectral_bandwidth_wavelength", "m", "Δλ", "nm", "spectral FWHM in wavelength", secondary=True,
@@ -112,12 +119,24 @@ ALIASES: dict[str, dict[str, str]] = {
 # Categorical keys of a block and the values each accepts (the pulse-shape and beam-profile tables of physics/shapes.py).
 CATEGORICAL = ("pulse_shape", "beam_profile")
 
+# Laser-block keys of the chirp the pulse carries (not quantities of the relation table: the
+# path's field reads them, checking/laser_pulse.py).
+LASER_CHIRP = ("chirp", "gdd", "tod")
+
 # Keys that point to a measured data file next to the spec (reading/measured.py reads them):
 # key -> (the axis-unit key, the unit's dimension key in units.DIMENSION_NAMES).
 MEASURED = {"spectrum": ("wavelength_unit", "m"), "autocorrelation": ("delay_unit", "s")}
 
 # Values a block assumes when it states nothing: quantity -> value in SI.
-DEFAULTS: dict[str, float] = {"refractive_index": 1.0}
+DEFAULTS: dict[str, float] = {"refractive_index": 1.0, "energy_in_main_peak": 1.0}
+# ... unless it states one of these: then the default would contradict what it says.
+DEFAULT_UNLESS: dict[str, tuple[str, ...]] = {"energy_in_main_peak": ("peak_power_factor",)}
+
+
+def defaults_for(stated) -> dict[str, float]:
+    """The defaults a block with these stated (or carried) quantities assumes."""
+    return {q: v for q, v in DEFAULTS.items() if q not in stated
+            and not any(u in stated for u in DEFAULT_UNLESS.get(q, ()))}
 
 if len(BY_NAME) != len(QUANTITIES):  # pragma: no cover - table sanity
     raise ValueError("duplicate quantity names in QUANTITIES")

@@ -109,12 +109,20 @@ RELATIONS: tuple[Relation, ...] = (
         "definition",
     ),
     Relation(
-        "peak-power",
-        "P_pk = a · E_p / τ  (a = 0.94 Gaussian, 0.88 sech², 2/π Lorentzian, 1 flat top)",
-        (("peak_power", 1), ("pulse_energy", -1), ("pulse_duration", 1)),
+        "main-peak",
+        "a = a_shape · η  (a_shape = 0.94 Gaussian, 0.88 sech², 2/π Lorentzian, 1 flat top)",
+        (("peak_power_factor", 1), ("energy_in_main_peak", -1)),
         lambda x: x.shape.peak_power_factor,
-        "integral of the pulse's intensity profile (the pulse-shape table)",
+        "a main peak of the pulse's shape holding the share η of the energy (the pulse-shape table); "
+        "η = 1 unless a or η is stated",
         uses=("pulse_shape",),
+    ),
+    Relation(
+        "peak-power",
+        "P_pk = a · E_p / τ",
+        (("peak_power", 1), ("pulse_energy", -1), ("pulse_duration", 1), ("peak_power_factor", -1)),
+        _one,
+        "definition of the peak-power factor a = P_pk·τ/E (the integral of the normalised profile)",
     ),
     Relation(
         "bandwidth-wavelength",

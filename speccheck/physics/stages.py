@@ -2,19 +2,18 @@
 to its output beam.
 
 A *beam* is what passes from one column of the sheet to the next: intervals
-``(low, typical, high)`` in SI for the primary quantities (``CARRIED``), the
-net group-delay dispersion relative to the transform limit, and the pulse's
-transform-limited duration.  Everything else of a column (peak power,
-intensity, fluence, field, …) is derived again in that column by the relation
-table, so a stage only says what it changes.
+``(low, typical, high)`` in SI for the primary quantities (``CARRIED``), and the pulse
+as a field (``physics/pulse.py``: its spectrum, the spectral phase the path has added,
+and the windows its tolerances and an unknown chirp sign open).  Everything else of a
+column (peak power, intensity, fluence, field, …) is derived again in that column by the
+relation table, so a stage only says what it changes.
 
-Pulse duration after dispersion uses the Gaussian closed form
-τ = τ_TL √(1 + (4 ln2 φ / τ_TL²)²) with the accumulated GDD φ (see
-``dispersion.py``); for other pulse shapes it is an approximation (the README
-says so; no finding does).  Third-order dispersion (a stage's ``tod``, and the TOD of
-each material from its Sellmeier equation) is accumulated and reported as
-``net_tod``, but not folded into the duration.  A laser pulse longer than its transform limit is taken to
-carry positive chirp (common practice: normal dispersion in the source).
+Until a stage changes the pulse's temporal profile, the laser's duration and its shape's
+peak-power factor are carried as they are.  From the first dispersive stage (or
+harmonic, or parametric stage) on, the duration, the peak-power factor P_pk·τ/E and the
+energy in the main peak come from the field at each column.  The field is built only
+when a stage needs it (``Beam.field``), so a path without such a stage never imports
+numpy.
 """
 
 from __future__ import annotations
@@ -23,12 +22,8 @@ import math
 from dataclasses import dataclass, field, replace
 from typing import Callable
 
-from speccheck.physics import dispersion
-from speccheck.physics.dispersion import broadened_duration
-
 CARRIED = ("wavelength", "repetition_rate", "pulse_energy", "average_power", "pulse_duration",
-           "spectral_bandwidth", "beam_diameter", "m2")
-_FOUR_LN2 = 4.0 * math.log(2.0)
+           "spectral_bandwidth", "beam_diameter", "m2", "peak_power_factor")
 
 Value = tuple  # (low, typical, high); low 0 / high inf when unbounded; typical may be None
 
@@ -57,12 +52,23 @@ def typical(v: Value) -> float | None:
 
 
 @dataclass(frozen=True)
+class LaserPulse:
+    """What the laser block says about its pulse, to build its field from when a stage needs it."""
+
+    shape: str
+    tl: Value | None  # s, the transform-limited duration (from the bandwidth, a measured spectrum or τ0)
+    duration: Value | None
+    chirp: str | None = None  # "positive" | "negative" | None
+    gdd: Value | None = None  # s², the chirp the laser's pulse carries (signed)
+    tod: Value | None = None  # s³
+
+
+@dataclass(frozen=True)
 class Beam:
     values: dict  # quantity -> Value
-    net_gdd: Value = (0.0, 0.0, 0.0)  # s², relative to the transform limit (may be negative)
-    tl_duration: Value | None = None  # s
+    laser: LaserPulse | None = None
+    pulse: object = None  # physics.pulse.Pulse once a stage has needed the field
     stage_gdd: Value | None = None  # s², what the last stage added
-    net_tod: Value = (0.0, 0.0, 0.0)  # s³, accumulated third-order dispersion (reported, not in τ)
 
     def get(self, q: str) -> Value | None:
         return self.values.get(q)
@@ -76,31 +82,28 @@ class Beam:
                 values[q] = v
         return replace(self, values=values)
 
+    def field(self, ctx) -> object | None:
+        """The pulse as a field (``physics.pulse.Pulse``), built from the laser on first use; None
+        where the numbers do not determine it (no duration and no bandwidth, no wavelength)."""
+        if self.pulse is not None:
+            return self.pulse
+        lam = self.get("wavelength")
+        if self.laser is None or self.laser.tl is None or not lam or not typical(lam) or not typical(self.laser.tl):
+            return None
+        from speccheck.physics import pulse
 
-def duration_after(tl: Value, gdd: Value) -> Value:
-    """τ = τ_TL √(1 + (4 ln2 φ/τ_TL²)²) (``dispersion.broadened_duration``) over the corners
-    of the two intervals."""
-    tau = broadened_duration
+        tl = self.laser.tl
+        tl = (tl[0] or tl[1], typical(tl), tl[2] if math.isfinite(tl[2]) else typical(tl))
+        made, notes = pulse.at_laser(self.laser.shape, tl, self.laser.duration, 2.0 * math.pi * ctx.c / typical(lam),
+                                     self.laser.chirp, self.laser.gdd, self.laser.tod)
+        for text in notes:
+            ctx.note(text)
+        return made
 
-    corners = [tau(t0, phi) for t0 in (tl[0], tl[2]) for phi in (gdd[0], gdd[2]) if t0 > 0 and math.isfinite(t0)]
-    # the shortest pulse for a given φ is at τ_TL = √(4 ln2 |φ|): include it when inside
-    for phi in (gdd[0], gdd[2]):
-        t_star = math.sqrt(_FOUR_LN2 * abs(phi))
-        if tl[0] < t_star < tl[2]:
-            corners.append(tau(t_star, phi))
-    mid = tau(typical(tl), gdd[1]) if typical(tl) else None
-    if not corners:
-        return (0.0, mid, math.inf)
-    return (min(corners), mid, max(corners))
-
-
-def intrinsic_gdd(duration: Value, tl: Value) -> Value:
-    """GDD a pulse of this duration already carries over its transform limit (positive chirp)."""
-    t, t0 = typical(duration), typical(tl)
-    if not t or not t0 or t <= t0:
-        return (0.0, 0.0, 0.0)
-    phi = dispersion.intrinsic_gdd(t, t0)
-    return (phi, phi, phi)
+    def with_pulse(self, made, ctx) -> "Beam":
+        """The beam carrying the pulse ``made``: its duration and peak-power factor from the field."""
+        n = made.numbers
+        return replace(self, pulse=made).with_values(pulse_duration=n.duration, peak_power_factor=n.peak_factor)
 
 
 # ------------------------------------------------------------------ stage kinds
@@ -186,21 +189,28 @@ def _amplifier(beam, p, ctx):
                                if beam.get(q)})
 
 
-def _sum(a: Value, b: Value) -> Value:
-    return (a[0] + b[0], a[1] + b[1], a[2] + b[2])
+def _add_phase(beam: Beam, ctx, terms: Callable, gdd: Value, tod: Value | None = None) -> Beam:
+    """The beam after a phase-only stage: ``terms(typical values)`` gives its phase terms;
+    the tolerances of its GDD and TOD widen the pulse's windows."""
+    made = beam.field(ctx)
+    beam = replace(beam, stage_gdd=gdd)
+    if made is None:
+        ctx.note("the pulse's duration after this stage is not known: the laser block needs a duration or a "
+                 "bandwidth, and a wavelength")
+        return beam.with_values(pulse_duration=None)
+    spread_tod = (tod[0] - tod[1], tod[2] - tod[1]) if tod is not None else (0.0, 0.0)
+    made = made.adding(terms(), (gdd[0] - gdd[1], gdd[2] - gdd[1]), spread_tod)
+    return beam.with_pulse(made, ctx)
 
 
-def _add_gdd(beam: Beam, gdd: Value, ctx, tod: Value | None = None) -> Beam:
-    net = _sum(beam.net_gdd, gdd)
-    beam = replace(beam, net_gdd=net, stage_gdd=gdd,
-                   net_tod=_sum(beam.net_tod, tod) if tod is not None else beam.net_tod)
-    if beam.tl_duration is not None:
-        beam = beam.with_values(pulse_duration=duration_after(beam.tl_duration, net))
-    return beam
+def _poly_terms(gdd: Value, tod: Value | None, fod: Value | None):
+    from speccheck.physics.field import Poly
+
+    return lambda: tuple(Poly(k, v[1]) for k, v in ((2, gdd), (3, tod), (4, fod)) if v is not None and v[1])
 
 
 def _dispersion(beam, p, ctx):
-    return _add_gdd(beam, p["gdd"], ctx, p.get("tod"))
+    return _add_phase(beam, ctx, _poly_terms(p["gdd"], p.get("tod"), p.get("fod")), p["gdd"], p.get("tod"))
 
 
 def _material(beam, p, ctx):
@@ -214,12 +224,18 @@ def _material(beam, p, ctx):
     value = (gdd[0], gvd * thickness[1], gdd[1])
     tod = ctx.tod(p["material"], typical(lam), thickness[1])
     tod_value = tuple(sorted((tod / thickness[1] * thickness[0], tod / thickness[1] * thickness[2])))
-    return _add_gdd(_transmit(beam, p["transmission"]), value, ctx, (tod_value[0], tod, tod_value[1]))
+
+    def terms():
+        from speccheck.physics.field import glass
+        return (glass(p["material"], thickness[1], ctx.c),)
+    return _add_phase(_transmit(beam, p["transmission"]), ctx, terms, value, (tod_value[0], tod, tod_value[1]))
 
 
 def _compressor(beam, p, ctx):
     beam = _transmit(beam, p["transmission"])
-    return _add_gdd(beam, p["gdd"], ctx) if p.get("gdd") is not None else beam
+    if p.get("gdd") is None:
+        return beam
+    return _add_phase(beam, ctx, _poly_terms(p["gdd"], p.get("tod"), p.get("fod")), p["gdd"], p.get("tod"))
 
 
 def _harmonic(beam, p, ctx):
@@ -229,7 +245,7 @@ def _harmonic(beam, p, ctx):
     changes = {q: scaled(beam.get(q), eff) for q in ("pulse_energy", "average_power") if beam.get(q)}
     if beam.get("wavelength"):
         changes["wavelength"] = scaled(beam.get("wavelength"), point(1.0 / n))
-    if beam.get("pulse_duration"):
+    if beam.get("pulse_duration"):  # the field's, where the pump's field is known (below)
         changes["pulse_duration"] = scaled(beam.get("pulse_duration"), point(1.0 / root))
     if beam.get("spectral_bandwidth"):
         changes["spectral_bandwidth"] = scaled(beam.get("spectral_bandwidth"), point(root))
@@ -237,16 +253,24 @@ def _harmonic(beam, p, ctx):
         # the n-th power of a Gaussian profile exp(-2r²/w²) is exp(-2n r²/w²): a 1/e² width w/√n, with
         # the same Rayleigh range and wavefront (undepleted pump, near field)
         changes["beam_diameter"] = scaled(beam.get("beam_diameter"), point(1.0 / root))
-    ctx.note(f"duration and bandwidth of the harmonic taken as τ/√{n} and √{n}·Δν (Gaussian pulse, "
-             "undepleted pump, no group-velocity mismatch: common practice)")
     m2 = beam.get("m2")
     ctx.note(f"the harmonic's beam taken as D/√{n} with the pump's Rayleigh range and wavefront (undepleted "
              "pump, thin crystal, a TEM00 Gaussian beam)" + (
                  "; with an M² above 1 this is only an estimate" if m2 and (m2[1] or m2[2]) > 1.05 else ""))
-    tl = scaled(beam.tl_duration, point(1.0 / root)) if beam.tl_duration else None
-    net = tuple(x / n for x in beam.net_gdd)  # the harmonic's spectral phase: φ2 / n, φ3 / n²
-    tod = tuple(x / n**2 for x in beam.net_tod)
-    return replace(beam.with_values(**changes), tl_duration=tl, net_gdd=net, net_tod=tod)
+    made = beam.field(ctx)
+    beam = beam.with_values(**changes)
+    if made is None:
+        ctx.note(f"duration and bandwidth of the harmonic taken as τ/√{n} and √{n}·Δν (Gaussian pulse, "
+                 "undepleted pump, no group-velocity mismatch: common practice)")
+        return beam
+    ctx.note(f"the harmonic's field taken as E(t)^{n} of the pump's field (thin crystal, undepleted pump, no "
+             "group-velocity mismatch)")
+    made = made.harmonic(n)
+    beam = beam.with_pulse(made, ctx)
+    if beam.get("spectral_bandwidth"):
+        bw = made.envelope.bandwidth() / (2.0 * math.pi)
+        beam = beam.with_values(spectral_bandwidth=(bw * made.tl[1] / made.tl[2], bw, bw * made.tl[1] / made.tl[0]))
+    return beam
 
 
 def _parametric(beam, p, ctx):
@@ -262,10 +286,12 @@ def _parametric(beam, p, ctx):
     changes = {q: scaled(beam.get(q), p["efficiency"]) for q in ("pulse_energy", "average_power") if beam.get(q)}
     changes["wavelength"] = out
     changes["spectral_bandwidth"] = None  # not known from the pump
-    ctx.note("the output pulse is taken to be as long as the pump (common practice for a first estimate)")
+    ctx.note("the output pulse is taken to be as long as the pump, transform limited, with the pump's "
+             "peak-power factor (common practice for a first estimate)")
     beam = beam.with_values(**changes)
-    return replace(beam, tl_duration=beam.get("pulse_duration"), net_gdd=(0.0, 0.0, 0.0),
-                   net_tod=(0.0, 0.0, 0.0))
+    duration = beam.get("pulse_duration")
+    shape = beam.laser.shape if beam.laser else "gaussian"
+    return replace(beam, laser=LaserPulse(shape, duration, duration), pulse=None)
 
 
 def _difference(a: Value, b: Value) -> Value | None:
@@ -317,6 +343,7 @@ PARAM_TOLERANCES: dict[str, tuple[float, str]] = {
     "focal_length": (0.01, "a catalogue lens: about 1% (common practice)"),
     "gdd": (0.05, "a designed or measured GDD: about 5% (common practice)"),
     "tod": (0.10, "a third-order dispersion: about 10% (common practice)"),
+    "fod": (0.20, "a fourth-order dispersion: about 20% (common practice)"),
     "magnification": (0.01, "a telescope's focal-length ratio: about 1% (common practice)"),
     "divide_by": (0.0, "a whole number of pulses: exact"),
     "order": (0.0, "a harmonic order: exact"),
@@ -337,15 +364,15 @@ STAGE_KINDS: dict[str, StageKind] = {k.name: k for k in (
     StageKind("amplifier", (Param("gain", "1"), Param("output_energy", "J"), Param("output_power", "W")),
               _amplifier, "energy × gain, or the output energy or power; rate unchanged",
               one_of=("gain", "output_energy", "output_power")),
-    StageKind("dispersion", (Param("gdd", "s^2", required=True), Param("tod", "s^3")), _dispersion,
-              "adds group-delay dispersion (a prechirp, a chirped mirror set)",
-              "τ = τ_TL √(1 + (4 ln2 φ/τ_TL²)²) for a Gaussian pulse"),
+    StageKind("dispersion", (Param("gdd", "s^2", required=True), Param("tod", "s^3"), Param("fod", "s^4")),
+              _dispersion, "adds spectral phase GDD·Δω²/2 + TOD·Δω³/6 + FOD·Δω⁴/24 (a prechirp, a chirped "
+              "mirror set)", "the pulse's field, by FFT (physics/field.py)"),
     StageKind("material", (Param("material", "material_name", required=True), Param("thickness", "m", required=True),
                            _T),
-              _material, "a thickness of a named glass: GDD from its Sellmeier equation",
-              "GDD = GVD × L, GVD = λ³/(2πc²) d²n/dλ²", checks=("self-focusing", "dispersion-range")),
-    StageKind("compressor", (Param("gdd", "s^2"), _T), _compressor,
-              "a grating or prism compressor: negative GDD and a transmission"),
+              _material, "a thickness of a named glass: the exact phase n(ω)ωL/c of its Sellmeier equation",
+              "the Sellmeier equation, to all orders (GDD = GVD × L shown)", checks=("self-focusing", "dispersion-range")),
+    StageKind("compressor", (Param("gdd", "s^2"), Param("tod", "s^3"), Param("fod", "s^4"), _T), _compressor,
+              "a compressor given by its dispersion: GDD, TOD, FOD and a transmission"),
     StageKind("harmonic", (Param("order", "1", required=True, choices=(2.0, 3.0)),
                            Param("efficiency", "1", required=True, fraction=True)), _harmonic,
               "second or third harmonic: λ ÷ order, energy × efficiency"),

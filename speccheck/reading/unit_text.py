@@ -21,6 +21,7 @@ DIMENSION_NAMES: dict[str, str] = {
     "1": "dimensionless",
     "s^2": "group-delay dispersion",
     "s^3": "third-order dispersion",
+    "s^4": "fourth-order dispersion",
 }
 
 MAX_UNIT_LENGTH = 64

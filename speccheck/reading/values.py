@@ -351,7 +351,7 @@ class ValueParser:
 
 _EXAMPLES = {"m": "800 nm", "s": "150 fs", "Hz": "80 MHz", "1/m": "100 cm^-1", "J": "25 nJ",
              "W": "2 W", "W/m^2": "1e14 W/cm^2", "J/m^2": "1 J/cm^2", "V/m": "1e9 V/m",
-             "s^2": "-800 fs^2", "s^3": "2000 fs^3", "1": "92%"}
+             "s^2": "-800 fs^2", "s^3": "2000 fs^3", "s^4": "5000 fs^4", "1": "92%"}
 
 
 def _example(names: dict[str, str]) -> str:

@@ -1,0 +1,63 @@
+"""The laser's pulse, as the path's field is built from it: its transform-limited duration
+(a measured spectrum's, or the shape's limit over the bandwidth, or the duration itself
+when nothing else is known: a transform-limited pulse), its duration, and the chirp the
+laser block states (``chirp``, or a signed ``gdd`` and ``tod``)."""
+
+from __future__ import annotations
+
+import math
+from dataclasses import replace
+
+from speccheck.checking.stage_checks import interval
+from speccheck.physics.shapes import DEFAULT_SHAPE
+from speccheck.physics.stages import CARRIED, Beam, LaserPulse, typical
+from speccheck.reading.values import ValueProblem
+
+
+def beam_from(cells: dict, old: Beam | None, shape_limit: float | None = None, shape: str = DEFAULT_SHAPE,
+              chirp: dict | None = None) -> Beam:
+    """The beam a column passes on: its carried values, and (from the laser's column) what its
+    pulse's field is built from."""
+    values = {q: interval(cells[q]) for q in CARRIED if q in cells}
+    if old is not None:
+        return replace(old, values=values, stage_gdd=None)
+    if "transform_limited_duration" in cells:
+        tl = interval(cells["transform_limited_duration"])
+    elif shape_limit is not None and "spectral_bandwidth" in cells and typical(values["spectral_bandwidth"]):
+        bw = values["spectral_bandwidth"]
+        tl = (shape_limit / bw[2], shape_limit / typical(bw), shape_limit / bw[0] if bw[0] else math.inf)
+    elif "pulse_duration" in values:
+        tl = values["pulse_duration"]
+    else:
+        tl = None
+    chirp = chirp or {}
+    return Beam(values, LaserPulse(shape, tl, values.get("pulse_duration"), chirp.get("chirp"), chirp.get("gdd"),
+                                   chirp.get("tod")))
+
+
+def laser_chirp(walk) -> dict:
+    """The chirp the laser's pulse carries: ``chirp`` (its sign), or a signed ``gdd`` and ``tod``."""
+    laser = walk.data.get("laser") if isinstance(walk.data.get("laser"), dict) else {}
+    out: dict = {}
+    if laser.get("chirp") in ("positive", "negative"):
+        out["chirp"] = laser["chirp"]
+    for key, dimension in (("gdd", "s^2"), ("tod", "s^3")):
+        if laser.get(key) is None:
+            continue
+        try:
+            s = walk.c.values.parse_as(f"laser.{key}", laser[key], dimension, walk.param_tolerance(key),
+                                       signed=True)
+        except ValueProblem as e:
+            walk.report.add(e.rule, e.message, ("laser", key), quantities=(f"laser.{key}",))
+            continue
+        if s.typical is None:
+            walk.report.add("invalid-value", f"laser.{key}: {s.text} leaves the chirp open; give a value "
+                            "('-2000 fs^2 ± 200 fs^2')", ("laser", key))
+            continue
+        out[key] = (s.low, s.typical, s.high)
+    if "tod" in out and "gdd" not in out:
+        out["gdd"] = (0.0, 0.0, 0.0)
+    if "gdd" in out and "chirp" in out and out["gdd"][1] and (out["gdd"][1] > 0) != (out["chirp"] == "positive"):
+        walk.report.add("invalid-value", f"laser.chirp: {out['chirp']} and a GDD of sign "
+                        f"{'+' if out['gdd'][1] > 0 else '−'} disagree", ("laser", "chirp"))
+    return out

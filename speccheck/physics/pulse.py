@@ -1,0 +1,202 @@
+"""The pulse carried along the path: its field (``field.py``) at the typical values, and the
+intervals its numbers can take.
+
+A ``Pulse`` is an envelope (the laser's pulse shape at its transform-limited duration τ0,
+or a sampled spectrum after a harmonic), the phase terms the path has added to it at
+their typical values, and *windows*: ranges of GDD and TOD to add on top of the typical
+phase, one per hypothesis about the laser's chirp (one window when its sign is known or
+the pulse is transform limited, two when it is not).  The tolerances of every stage widen
+the windows; the tolerance of τ0 (from the bandwidth's) scales the envelope.
+
+The numbers of a column (duration, peak-power factor P_pk·τ/E, the energy in the main
+peak) are evaluated at the typical phase and at the corners: τ0 low and high × each end of
+each window's GDD (× each end of its TOD where that matters), and, where a window's GDD
+range holds the GDD that cancels the typical net GDD, there too, so an interval that spans
+the compensating value holds the shortest pulse.  The interval is the smallest and
+largest over these points; the typical value is the typical phase's (for an unknown
+chirp sign, the positive one, common practice: normal dispersion in the source).
+
+A Gaussian envelope whose phase beyond second order is negligible over its spectrum
+(below 0.01 rad at four spectral half-widths) takes the closed form
+τ = τ0 √(1 + (4 ln2 φ2/τ0²)²) (``dispersion.py``) instead of an FFT: it is exact there.
+"""
+
+from __future__ import annotations
+
+import math
+from dataclasses import dataclass, replace
+from functools import cached_property
+
+from speccheck.physics import field as F
+from speccheck.physics.dispersion import broadened_duration
+from speccheck.physics.shapes import PULSE_SHAPES
+
+Value = tuple  # (low, typical, high)
+GAUSSIAN_A = PULSE_SHAPES["gaussian"].peak_power_factor
+_NEGLIGIBLE = 0.01  # rad: phase beyond second order that changes no duration visibly
+
+
+@dataclass(frozen=True)
+class Window:
+    gdd: tuple[float, float]  # s², added to the typical phase
+    tod: tuple[float, float] = (0.0, 0.0)  # s³
+
+    def shifted(self, gdd=(0.0, 0.0), tod=(0.0, 0.0)) -> "Window":
+        return Window((self.gdd[0] + gdd[0], self.gdd[1] + gdd[1]), (self.tod[0] + tod[0], self.tod[1] + tod[1]))
+
+    def scaled(self, k2: float, k3: float) -> "Window":
+        return Window((self.gdd[0] * k2, self.gdd[1] * k2), (self.tod[0] * k3, self.tod[1] * k3))
+
+
+@dataclass(frozen=True)
+class Numbers:
+    duration: Value
+    peak_factor: Value
+    main_peak: Value
+    net: tuple[Value, Value, Value]  # net GDD, TOD, FOD over the windows (typical in the middle)
+    phase_rms: float
+
+
+@dataclass(frozen=True)
+class Pulse:
+    envelope: F.Envelope
+    omega0: float  # rad/s
+    tl: Value  # s: the transform-limited FWHM, low / typical / high
+    terms: tuple = ()
+    windows: tuple[Window, ...] = (Window((0.0, 0.0)),)
+    shaped: bool = False  # a stage has changed the temporal profile: the field's numbers apply
+    sign_unknown: bool = False
+
+    def adding(self, terms: tuple, gdd=(0.0, 0.0), tod=(0.0, 0.0)) -> "Pulse":
+        """The pulse after phase-only terms (typical) with their tolerances as GDD and TOD ranges
+        around the typical (``gdd`` = (low − typical, high − typical))."""
+        return replace(self, terms=self.terms + tuple(terms), shaped=True,
+                       windows=tuple(w.shifted(gdd, tod) for w in self.windows))
+
+    def harmonic(self, order: int) -> "Pulse":
+        """E(t)^order of the typical field (thin crystal, undepleted): the windows' GDD and TOD
+        become φ2/n and φ3/n² (the phase of E^n at n times the offsets)."""
+        env = F.harmonic(self.envelope, self.terms, self.omega0, order)
+        ratio = env.tl / self.envelope.tl
+        tl = tuple(x * ratio for x in self.tl)
+        return Pulse(env, self.omega0 * order, tl, (), tuple(w.scaled(1.0 / order, 1.0 / order**2)
+                                                            for w in self.windows), True, self.sign_unknown)
+
+    # ------------------------------------------------------------- numbers
+    @cached_property
+    def taylor(self) -> tuple[float, float, float]:
+        """Net GDD, TOD, FOD at the carrier: the envelope's own phase and the terms'."""
+        own, added = self.envelope.taylor(), F.taylor(self.terms, self.omega0)
+        return tuple(a + b for a, b in zip(own, added))
+
+    @cached_property
+    def _closed(self) -> bool:
+        return self._closed_form()
+
+    def _closed_form(self) -> bool:
+        if self.envelope.shape != "gaussian":
+            return False
+        _, tod, fod = self.taylor
+        x = 4.0 / (self.envelope.tl * min(1.0, self.tl[0] / self.tl[1]))
+        tods = [abs(tod + t) for w in self.windows for t in w.tod]
+        return max(tods) * x**3 / 6.0 + abs(fod) * x**4 / 24.0 < _NEGLIGIBLE
+
+    def _at(self, scale: float, gdd: float, tod: float) -> F.Measures:
+        if self._closed:
+            return F.Measures(broadened_duration(self.envelope.tl * scale, self.taylor[0] + gdd), GAUSSIAN_A,
+                              1.0, float("nan"), "closed form")
+        return F.measure(self.envelope, self.terms, self.omega0, scale, (gdd, tod))
+
+    @cached_property
+    def numbers(self) -> Numbers:
+        typ = self._at(1.0, 0.0, 0.0)
+        scales = sorted({self.tl[0] / self.tl[1], self.tl[2] / self.tl[1]}) if self.tl[1] else [1.0]
+        points = [typ]
+        for w in self.windows:
+            tods = sorted(set(w.tod)) if self._tod_matters(w) else [0.0]
+            gdds = list(w.gdd)
+            best = -self.taylor[0]  # cancels the typical net GDD: the shortest pulse, near enough
+            if w.gdd[0] < best < w.gdd[1]:
+                gdds.append(best)
+            for s in scales:
+                for g in gdds:
+                    for t in tods:
+                        points.append(self._at(s, g, t))
+        durations = [p.duration for p in points]
+        factors = [p.peak_factor for p in points]
+        mains = [p.main_peak for p in points]
+        gdd, tod, fod = self.taylor
+        net_gdd = (gdd + min(w.gdd[0] for w in self.windows), gdd, gdd + max(w.gdd[1] for w in self.windows))
+        net_tod = (tod + min(w.tod[0] for w in self.windows), tod, tod + max(w.tod[1] for w in self.windows))
+        return Numbers((min(durations), typ.duration, max(durations)), (min(factors), typ.peak_factor, max(factors)),
+                       (min(mains), typ.main_peak, max(mains)), (net_gdd, net_tod, (fod, fod, fod)), typ.phase_rms)
+
+    def _tod_matters(self, w: Window) -> bool:
+        x = 4.0 / self.envelope.tl
+        return abs(w.tod[1] - w.tod[0]) * x**3 / 6.0 >= _NEGLIGIBLE
+
+    def compensation(self) -> tuple[float, float]:
+        """The GDD and TOD to add for the highest peak power: the negatives of the net GDD and TOD
+        at the carrier, then a few steps of coordinate search on the peak power (which differs
+        from them where fourth and higher orders remain)."""
+        gdd0, tod0, _ = self.taylor
+        best = (-gdd0, -tod0)
+        if self._closed_form():
+            return best
+
+        def peak(g, t):
+            m = F.measure(self.envelope, self.terms, self.omega0, 1.0, (g, t))
+            return m.peak_factor / m.duration
+
+        tl = self.envelope.tl
+        step = [0.05 * tl * tl, 0.05 * tl**3]
+        value = peak(*best)
+        for _ in range(12):
+            moved = False
+            for k in (0, 1):
+                for sign in (1, -1):
+                    trial = list(best)
+                    trial[k] += sign * step[k]
+                    v = peak(*trial)
+                    if v > value * (1 + 1e-9):
+                        best, value, moved = tuple(trial), v, True
+                        break
+            if not moved:
+                step = [s / 3.0 for s in step]
+        return best
+
+
+def at_laser(shape: str, tl: Value, duration: Value | None, omega0: float, chirp: str | None,
+             gdd: Value | None, tod: Value | None) -> tuple[Pulse, list[str]]:
+    """The laser's pulse: its shape at τ0, with the chirp that gives its stated duration.
+
+    ``chirp`` is "positive", "negative" or None; ``gdd`` and ``tod`` (signed intervals) are the
+    chirp the laser's pulse carries, where the spec states it.  Returns the pulse and the
+    model notes to say at the first stage that uses the field."""
+    notes = []
+    if shape not in ("gaussian", "sech2", "flat_top"):
+        notes.append(f"the {shape} shape has no transform limit, so its field is taken as a Gaussian's of "
+                     "the same duration")
+        shape = "gaussian"
+    env = F.Envelope(tl[1], shape)
+    if gdd is not None:
+        terms = [F.Poly(2, gdd[1])] + ([F.Poly(3, tod[1])] if tod is not None else [])
+        window = Window((gdd[0] - gdd[1], gdd[2] - gdd[1]),
+                        (tod[0] - tod[1], tod[2] - tod[1]) if tod is not None else (0.0, 0.0))
+        return Pulse(env, omega0, tl, tuple(terms), (window,)), notes
+    if duration is None or duration[1] is None or duration[1] <= tl[1] * 1.001:
+        return Pulse(env, omega0, tl), notes
+    corners = [F.gdd_for_duration(shape, t0, d) for t0 in (tl[0], tl[2]) for d in (duration[0], duration[2])
+               if t0 > 0 and math.isfinite(d) and d > 0]
+    typ = F.gdd_for_duration(shape, tl[1], duration[1])
+    lo, hi = min(corners + [typ]), max(corners + [typ])
+    sign = -1.0 if chirp == "negative" else 1.0
+    terms = (F.Poly(2, sign * typ),)
+    window = Window((sign * lo - sign * typ, sign * hi - sign * typ) if sign > 0 else (-hi + typ, -lo + typ))
+    if chirp in ("positive", "negative"):
+        return Pulse(env, omega0, tl, terms, (window,)), notes
+    other = Window((-hi - typ, -lo - typ))
+    notes.append("the laser's pulse is longer than its transform limit and the sign of its chirp is not "
+                 "stated, so every duration after a dispersive stage covers both signs (the typical value "
+                 "takes positive chirp, common practice); state laser.chirp: positive or negative")
+    return Pulse(env, omega0, tl, terms, (window, other), sign_unknown=True), notes

@@ -1,0 +1,198 @@
+"""The pulse as a field (physics/field.py, physics/pulse.py), each number against a reference
+outside the code that computes it."""
+
+from __future__ import annotations
+
+import math
+
+import numpy as np
+import pytest
+
+from speccheck.physics import field as F
+from speccheck.physics import materials
+from speccheck.physics import pulse as P
+
+FS = 1e-15
+C = 299792458.0
+W800 = 2 * math.pi * C / 800e-9
+LN2 = math.log(2.0)
+
+
+def gaussian_closed_form(tl: float, gdd: float) -> float:
+    # τ = τ0 √(1 + (4 ln2 φ2/τ0²)²): the Fourier transform of a Gaussian with quadratic phase, done by
+    # hand (A. M. Weiner, Ultrafast Optics, Wiley 2009, ch. 4; J.-C. Diels & W. Rudolph, ch. 2)
+    return tl * math.sqrt(1 + (4 * LN2 * gdd / tl**2) ** 2)
+
+
+@pytest.mark.parametrize("gdd_fs2", [0.0, 100.0, 500.0, -2000.0, 10_000.0, 100_000.0])
+def test_a_gaussian_with_gdd_matches_the_closed_form(gdd_fs2):
+    m = F.measure(F.Envelope(30 * FS, "gaussian"), (F.Poly(2, gdd_fs2 * FS**2),), W800)
+    assert m.duration == pytest.approx(gaussian_closed_form(30 * FS, gdd_fs2 * FS**2), rel=1e-6)
+    # a chirped Gaussian stays Gaussian: P_pk τ/E = 2 √(ln2/π) (the shape table's closed form)
+    assert m.peak_factor == pytest.approx(2 * math.sqrt(LN2 / math.pi), rel=1e-6)
+    assert m.main_peak == pytest.approx(1.0, abs=1e-9)
+
+
+def test_the_flat_phase_sech2_pulse_has_its_shape_factors():
+    m = F.measure(F.Envelope(30 * FS, "sech2"), (), W800)
+    assert m.duration == pytest.approx(30 * FS, rel=1e-6)
+    assert m.peak_factor == pytest.approx(math.log(1 + math.sqrt(2)), rel=1e-6)  # ∫sech² = 2T, FWHM 1.7627 T
+
+
+@pytest.mark.parametrize("ratio", [50.0, 200.0])
+def test_a_strongly_chirped_sech2_pulse_approaches_the_stationary_phase_asymptote(ratio):
+    # For GDD ≫ τ0² the pulse maps its spectrum onto time: τ → |GDD| Δω_FWHM (stationary phase; Weiner
+    # ch. 4).  The spectral intensity of a sech² pulse is sech²(π Δω T/2), whose FWHM is
+    # Δω = 2·1.7627/(π T/2)·… computed here from the closed form: 4 acosh(√2) / (π T).
+    tl = 100 * FS
+    t_width = tl / (2 * math.acosh(math.sqrt(2)))
+    dw_fwhm = 4 * math.acosh(math.sqrt(2)) / (math.pi * t_width)
+    gdd = ratio * tl**2
+    m = F.measure(F.Envelope(tl, "sech2"), (F.Poly(2, gdd),), W800)
+    asymptote = gdd * dw_fwhm
+    # the asymptote's relative error falls as (τ0²/GDD)²: measured 1.6e-4 at 50 τ0², 1e-5 at 200 τ0²
+    assert m.duration == pytest.approx(asymptote, rel=2.0 / ratio**2 + 1e-5)
+
+
+def test_a_150_fs_sech2_pulse_after_80000_fs2_lasts_1_12_ps_not_1_49():
+    m = F.measure(F.Envelope(150 * FS, "sech2"), (F.Poly(2, 80_000 * FS**2),), W800)
+    assert m.duration == pytest.approx(1.12e-12, rel=5e-3)
+    assert gaussian_closed_form(150 * FS, 80_000 * FS**2) == pytest.approx(1.49e-12, rel=5e-3)
+
+
+def _direct_quadrature_intensity(tl: float, tod: float, t: np.ndarray) -> np.ndarray:
+    """|E(t)|² by trapezoidal quadrature of the Fourier integral ∫ A(ω) e^{iφ(ω)} e^{−iωt} dω on a dense
+    frequency grid: no FFT."""
+    w = np.linspace(-12 / tl, 12 / tl, 3001)
+    spec = np.exp(-(w * tl) ** 2 / (8 * LN2)) * np.exp(1j * tod * w**3 / 6)
+    field = np.concatenate([np.trapezoid(spec[None, :] * np.exp(-1j * np.outer(part, w)), w, axis=1)
+                            for part in np.array_split(t, 16)])
+    return np.abs(field) ** 2
+
+
+def _fwhm(t: np.ndarray, inten: np.ndarray) -> float:
+    """The outermost half-maximum crossings, linearly interpolated between samples."""
+    half = inten.max() / 2
+    above = np.flatnonzero(inten >= half)
+    lo, hi = above[0], above[-1]
+    t_lo = t[lo - 1] + (half - inten[lo - 1]) / (inten[lo] - inten[lo - 1]) * (t[lo] - t[lo - 1])
+    t_hi = t[hi] + (half - inten[hi]) / (inten[hi + 1] - inten[hi]) * (t[hi + 1] - t[hi])
+    return t_hi - t_lo
+
+
+def test_pure_tod_matches_direct_quadrature_of_the_fourier_integral():
+    tl, tod = 20 * FS, 3000 * FS**3
+    m = F.measure(F.Envelope(tl, "gaussian"), (F.Poly(3, tod),), W800)
+    t = np.linspace(-200 * FS, 300 * FS, 4001)
+    inten = _direct_quadrature_intensity(tl, tod, t)
+    width = _fwhm(t, inten)
+    assert m.duration == pytest.approx(width, rel=1e-3)
+    dt = t[1] - t[0]
+    assert m.peak_factor == pytest.approx(inten.max() * width / (inten.sum() * dt), rel=2e-3)
+    # TOD makes satellites: the energy between the minima that bound the main peak, from the quadrature
+    k = int(np.argmax(inten))
+    left = k
+    while left > 0 and not (inten[left - 1] > inten[left] and inten[left] < inten[k] / 2):
+        left -= 1
+    right = k
+    while right < len(t) - 1 and not (inten[right + 1] > inten[right] and inten[right] < inten[k] / 2):
+        right += 1
+    main = inten[left:right + 1].sum() / inten.sum()
+    assert main < 0.99
+    assert m.main_peak == pytest.approx(main, abs=2e-3)
+
+
+def test_a_12_fs_pulse_through_15_mm_of_fused_silica_and_a_matched_gdd_compressor_is_13_5_fs():
+    # The glass's exact phase (Malitson's Sellmeier equation) less its GDD leaves its TOD (and higher):
+    # the pulse is about 13.5 fs, not 12 fs.
+    glass = F.glass("fused_silica", 15e-3, C)
+    gdd = materials.gdd("fused_silica", 800e-9, 15e-3, C)
+    m = F.measure(F.Envelope(12 * FS, "gaussian"), (glass, F.Poly(2, -gdd)), W800)
+    assert m.duration == pytest.approx(13.5 * FS, rel=0.01)
+    # without the glass's TOD (a pure-GDD compressor on a pure-GDD glass) the pulse is back to 12 fs
+    assert F.measure(F.Envelope(12 * FS, "gaussian"), (F.Poly(2, gdd), F.Poly(2, -gdd)), W800).duration == \
+        pytest.approx(12 * FS, rel=1e-6)
+
+
+def test_the_glass_phase_has_the_sellmeier_gdd_and_tod():
+    # The exact phase's derivatives at the carrier (finite differences) against the analytic derivatives of
+    # the Sellmeier equation (materials.gdd / materials.tod): two different computations.
+    glass = F.glass("fused_silica", 10e-3, C)
+    gdd, tod, _ = glass.taylor(W800)
+    assert gdd == pytest.approx(materials.gdd("fused_silica", 800e-9, 10e-3, C), rel=1e-5)
+    assert tod == pytest.approx(materials.tod("fused_silica", 800e-9, 10e-3, C), rel=1e-4)
+    # 10 mm of fused silica at 800 nm: about 361 fs² and 275 fs³ (from memory)
+    assert gdd / FS**2 == pytest.approx(361, rel=0.01)
+    assert tod / FS**3 == pytest.approx(275, rel=0.02)
+
+
+@pytest.mark.parametrize("terms", [
+    (F.Poly(2, 5000 * FS**2),),
+    (F.Poly(3, 20000 * FS**3),),
+    (F.glass("fused_silica", 20e-3, C),),
+])
+def test_phase_only_stages_conserve_energy(terms):
+    # Parseval: Σ|E(t)|² dt = (1/2π)·N·Σ|E(ω)|² dω for the discrete transform; a phase changes neither
+    env = F.Envelope(15 * FS, "gaussian")
+    half, window, n = F.sample(env, terms, W800)
+    step = 2 * math.pi / window
+    dw = np.fft.fftfreq(n, 1 / (n * step))
+    spec = env.at(dw) * np.exp(1j * F.total_phase(terms, W800, dw))
+    e_t = np.fft.fft(spec)
+    flat = np.fft.fft(env.at(dw))
+    assert np.sum(np.abs(e_t) ** 2) == pytest.approx(np.sum(np.abs(flat) ** 2), rel=1e-12)
+    assert np.sum(np.abs(e_t) ** 2) == pytest.approx(n * np.sum(np.abs(spec) ** 2), rel=1e-12)
+
+
+def test_a_second_harmonic_of_a_chirped_gaussian_halves_its_gdd_and_shortens_it_by_root_two():
+    # E(t)² of a Gaussian with complex parameter A: A/2, i.e. τ0/√2, φ2/2 and τ/√2 (by hand)
+    pulse = P.Pulse(F.Envelope(30 * FS, "gaussian"), W800, (30 * FS,) * 3, (F.Poly(2, 1000 * FS**2),), shaped=True)
+    shg = pulse.harmonic(2)
+    assert shg.envelope.tl == pytest.approx(30 * FS / math.sqrt(2), rel=1e-5)
+    assert shg.taylor[0] == pytest.approx(500 * FS**2, rel=1e-3)
+    assert shg.numbers.duration[1] == pytest.approx(pulse.numbers.duration[1] / math.sqrt(2), rel=1e-4)
+
+
+def test_a_gdd_interval_that_spans_zero_contains_the_transform_limit():
+    pulse = P.Pulse(F.Envelope(30 * FS, "gaussian"), W800, (30 * FS,) * 3).adding(
+        (F.Poly(2, 0.0),), (-2000 * FS**2, 2000 * FS**2))
+    low, typ, high = pulse.numbers.duration
+    assert low == pytest.approx(30 * FS, rel=1e-9)
+    assert high == pytest.approx(gaussian_closed_form(30 * FS, 2000 * FS**2), rel=1e-6)  # 187 fs
+
+
+def test_an_unknown_chirp_sign_covers_both_signs():
+    # 35 fs with a 31.4 fs transform limit carries ±175 fs² (closed form); 360 fs² of glass then gives
+    # 31.4 fs·√(1 + (4 ln2·535/31.4²)²) for positive chirp and …·185 fs² for negative
+    tl = 31.4 * FS
+    phi = tl**2 / (4 * LN2) * math.sqrt((35 / 31.4) ** 2 - 1)
+    pulse, notes = P.at_laser("gaussian", (tl,) * 3, (35 * FS,) * 3, W800, None, None, None)
+    assert notes and "both signs" in notes[0]
+    after = pulse.adding((F.Poly(2, 360 * FS**2),))
+    low, typ, high = after.numbers.duration
+    assert typ == pytest.approx(gaussian_closed_form(tl, phi + 360 * FS**2), rel=1e-6)
+    assert high == pytest.approx(typ, rel=1e-9)
+    assert low == pytest.approx(gaussian_closed_form(tl, 360 * FS**2 - phi), rel=1e-6)
+    known, _ = P.at_laser("gaussian", (tl,) * 3, (35 * FS,) * 3, W800, "negative", None, None)
+    assert known.adding((F.Poly(2, 360 * FS**2),)).numbers.duration[1] == pytest.approx(low, rel=1e-6)
+
+
+def test_the_laser_gdd_that_reproduces_a_sech2_duration_is_found_from_the_field():
+    tl = 30 * FS
+    gdd = F.gdd_for_duration("sech2", tl, 60 * FS)
+    assert F.measure(F.Envelope(tl, "sech2"), (F.Poly(2, gdd),), W800).duration == pytest.approx(60 * FS, rel=2e-3)
+
+
+def test_the_compensation_for_a_glass_is_its_negative_gdd_and_tod():
+    pulse = P.Pulse(F.Envelope(12 * FS, "gaussian"), W800, (12 * FS,) * 3).adding((F.glass("fused_silica", 15e-3, C),))
+    gdd, tod = pulse.compensation()
+    assert gdd == pytest.approx(-materials.gdd("fused_silica", 800e-9, 15e-3, C), rel=0.05)
+    assert tod == pytest.approx(-materials.tod("fused_silica", 800e-9, 15e-3, C), rel=0.1)
+    best = F.measure(pulse.envelope, pulse.terms, W800, 1.0, (gdd, tod))
+    assert best.duration == pytest.approx(12 * FS, rel=0.01)
+
+
+def test_a_stretcher_uses_the_stationary_phase_mapping():
+    m = F.measure(F.Envelope(30 * FS, "gaussian"), (F.Poly(2, 3e6 * FS**2),), W800)
+    assert m.method == "stationary-phase"
+    assert m.duration == pytest.approx(gaussian_closed_form(30 * FS, 3e6 * FS**2), rel=1e-3)

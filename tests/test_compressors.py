@@ -184,7 +184,7 @@ def test_prism_pair_fused_silica_ballpark() -> None:
     # Tip to tip (no insertion) only the angular term is left: GDD = -8 l n'^2 lambda^3/(2 pi c^2).
     # With dn/dlambda = -0.0172 per um for fused silica at 800 nm (from memory) that is
     # -8 * (1.72e4 /m)^2 * 5.12e-19 m^3 / (2 pi c^2) = -2.15e-27 s^2 per m, -21.5 fs^2/cm.
-    # RP Photonics Encyclopedia, "Prism pairs": typical pairs give up to a few thousand fs^2.
+    # Typical prism pairs give up to a few thousand fs^2 (from memory).
     gdd, _ = comp.prism_pair_dispersion(LAM0, "fused_silica", 0.01, 0.0, c)
     assert gdd / FS2 == pytest.approx(-21.5, rel=0.03, abs=0)
     # apex separation for -1000 fs^2: about 46 cm, within the usual tens of cm

@@ -23,6 +23,10 @@ EXPECTED = {
     "mirror-damage.yaml": [("optic-damage", 20, None)],
     "impossible-focus.yaml": [("spot-below-diffraction-limit", 17, None)],
     "hhg-argon.yaml": [],
+    # the grating pair cancels the stretcher's GDD, but its TOD and the window's leave 33.9 fs
+    "cpa-grating-compressor.yaml": [("target-not-met", 29, None), ("target-not-met", 30, None)],
+    # a peak power that allows for a pedestal, consistent once the sheet states its share
+    "fibre-laser-pedestal.yaml": [],
     "typos-and-units.yaml": [("unknown-key", 8, None), ("wrong-dimension", 9, None),
                              ("missing-unit", 10, None), ("duplicate-key", 12, None)],
 }

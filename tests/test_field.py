@@ -114,6 +114,16 @@ def test_a_12_fs_pulse_through_15_mm_of_fused_silica_and_a_matched_gdd_compresso
         pytest.approx(12 * FS, rel=1e-6)
 
 
+def test_the_glass_phase_fod_is_the_frequency_derivative_of_the_sellmeier_tod():
+    # FOD = dTOD/dω: a central difference of the analytic TOD (materials.tod) across ω, against the field's
+    # seven-point stencil on the exact phase
+    glass = F.glass("fused_silica", 10e-3, C)
+    _, _, fod = glass.taylor(W800)
+    h = 1e-3 * W800
+    tod = [materials.tod("fused_silica", 2 * math.pi * C / w, 10e-3, C) for w in (W800 - h, W800 + h)]
+    assert fod == pytest.approx((tod[1] - tod[0]) / (2 * h), rel=2e-3)
+
+
 def test_the_glass_phase_has_the_sellmeier_gdd_and_tod():
     # The exact phase's derivatives at the carrier (finite differences) against the analytic derivatives of
     # the Sellmeier equation (materials.gdd / materials.tod): two different computations.

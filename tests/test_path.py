@@ -322,3 +322,69 @@ def test_an_unstated_m2_makes_the_focus_a_bound(check):
     assert spot.value == pytest.approx(4 * 800e-9 * 0.1 / (math.pi * 5e-3))  # typical: M² = 1
     assert result.sheet["lens"]["peak_intensity"].low is None  # an upper bound only
     assert any(f.rule == "stage-model" and "M² is not stated" in f.message for f in result.findings)
+
+
+# ------------------------------------------------------------ compressors from their geometry
+COMPRESSED = """spec_version: 1
+laser:
+  wavelength: 800 nm
+  pulse_energy: 1 mJ
+  repetition_rate: 1 kHz
+  spectral_bandwidth: 40 nm
+  beam_diameter: 8 mm
+path:
+"""
+
+
+def test_a_grating_compressor_adds_treacys_gdd_and_tod(check):
+    # Treacy's closed form, double pass (physics/compressors.py, itself tested against the exact phase):
+    # GDD = -2 λ³ G / (2π c² d² cos³θd), here recomputed by hand from the grating equation
+    lam, d, theta_i, gap = 800e-9, 1e-3 / 1200, math.radians(28), 5.43e-3
+    sin_d = lam / d - math.sin(theta_i)
+    cos_d = math.sqrt(1 - sin_d**2)
+    gdd = -2 * lam**3 * gap / (2 * math.pi * 299792458**2 * d**2 * cos_d**3)
+    r = check(COMPRESSED + "  - {name: g, kind: grating_compressor, groove_density: 1200 lines/mm, "
+              "incidence_angle: 28 deg, separation: 5.43 mm}\n")
+    assert not [f for f in r.findings if f.severity == "error"], r.findings
+    assert cell(r, "stage_gdd", "g").value == pytest.approx(gdd, rel=1e-6)
+    assert cell(r, "net_tod", "g").value > 0  # a grating pair's TOD has the sign of a glass's
+
+
+def test_a_grating_compressor_cancels_a_stretcher_but_leaves_the_tod(check):
+    # the same pair after +21426 fs² (its own −GDD): the pulse is shortest with the GDD gone, and the
+    # grating's TOD leaves it longer than its 23.55 fs transform limit
+    r = check(COMPRESSED + "  - {name: s, kind: dispersion, gdd: 21426 fs^2}\n"
+              "  - {name: g, kind: grating_compressor, groove_density: 1200 lines/mm, "
+              "incidence_angle: 28 deg, separation: 5.43 mm}\n")
+    assert abs(cell(r, "net_gdd", "g").value) < 100e-30
+    assert 24e-15 < value(r, "g", "pulse_duration") < 60e-15
+
+
+@pytest.mark.parametrize("angle, says", [("10 deg", "no first diffracted order at 800 nm"),
+                                         ("80 deg", "does not exist at 8")])
+def test_a_grating_without_a_first_order_is_a_stage_parameter_error(check, angle, says):
+    # 2400 lines/mm at 800 nm: sin θd = λ/d − sin θi = 1.92 − sin θi, no order at 10°; at 80° the centre
+    # diffracts (0.935) but the red side of a 40 nm spectrum does not (by hand)
+    r = check(COMPRESSED + "  - {name: g, kind: grating_compressor, groove_density: 2400 lines/mm, "
+              f"incidence_angle: {angle}, separation: 5 mm}}\n")
+    assert ("stage-parameter", 9) in rules_of(r)
+    assert says in next(f.message for f in r.findings if f.rule == "stage-parameter")
+
+
+@pytest.mark.parametrize("angle, rule", [("28", "missing-unit"), ("28 furlongs", "invalid-value"),
+                                         ("400 deg", "invalid-value")])
+def test_an_angle_needs_deg_or_rad(check, angle, rule):
+    r = check(COMPRESSED + "  - {name: g, kind: grating_compressor, groove_density: 1200 lines/mm, "
+              f"incidence_angle: {angle}, separation: 5 mm}}\n")
+    assert (rule, 9) in rules_of(r)
+
+
+def test_a_prism_compressor_gives_negative_gdd_and_insertion_adds_glass(check):
+    base = COMPRESSED + "  - {name: p, kind: prism_compressor, material: fused_silica, apex_separation: 50 cm"
+    tip = check(base + "}\n")
+    deep = check(base + ", insertion: 5 mm}\n")
+    # tip to tip: −21.7 fs²/cm double pass for fused silica at 800 nm (tests/test_compressors.py)
+    assert cell(tip, "stage_gdd", "p").value == pytest.approx(-21.67e-30 * 50, rel=0.02)
+    # 5 mm insertion: 2 × 2·5 mm/n of extra glass at ≈ 36.2 fs²/mm, about +500 fs²
+    extra = cell(deep, "stage_gdd", "p").value - cell(tip, "stage_gdd", "p").value
+    assert extra == pytest.approx(4 * 5e-3 / 1.4533 * 36.16e-27, rel=0.05)

@@ -10,7 +10,7 @@ from dataclasses import replace
 
 from speccheck.checking.stage_checks import interval
 from speccheck.physics.shapes import DEFAULT_SHAPE
-from speccheck.physics.stages import CARRIED, Beam, LaserPulse, typical
+from speccheck.physics.beam import CARRIED, Beam, LaserPulse, typical
 from speccheck.reading.values import ValueProblem
 
 
@@ -21,18 +21,21 @@ def beam_from(cells: dict, old: Beam | None, shape_limit: float | None = None, s
     values = {q: interval(cells[q]) for q in CARRIED if q in cells}
     if old is not None:
         return replace(old, values=values, stage_gdd=None)
+    source = "bandwidth"
     if "transform_limited_duration" in cells:
-        tl = interval(cells["transform_limited_duration"])
+        tl, source = interval(cells["transform_limited_duration"]), "measured"
     elif shape_limit is not None and "spectral_bandwidth" in cells and typical(values["spectral_bandwidth"]):
         bw = values["spectral_bandwidth"]
         tl = (shape_limit / bw[2], shape_limit / typical(bw), shape_limit / bw[0] if bw[0] else math.inf)
     elif "pulse_duration" in values:
-        tl = values["pulse_duration"]
+        tl, source = values["pulse_duration"], "duration"
     else:
         tl = None
     chirp = chirp or {}
+    share = interval(cells["energy_in_main_peak"]) if "energy_in_main_peak" in cells else (1.0, 1.0, 1.0)
+    share = (share[0], typical(share) or 1.0, share[2] if math.isfinite(share[2]) else 1.0)
     return Beam(values, LaserPulse(shape, tl, values.get("pulse_duration"), chirp.get("chirp"), chirp.get("gdd"),
-                                   chirp.get("tod")))
+                                   chirp.get("tod"), share, source))
 
 
 def laser_chirp(walk) -> dict:

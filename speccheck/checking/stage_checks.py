@@ -19,7 +19,8 @@ from dataclasses import dataclass
 from typing import Callable
 
 from speccheck.physics import hazards, materials
-from speccheck.physics.stages import STAGE_KINDS, Beam, StageKind, typical
+from speccheck.physics.beam import Beam, typical
+from speccheck.physics.stages import STAGE_KINDS, StageKind
 from speccheck.reading.values import ValueProblem
 from speccheck.records.findings import Cell
 from speccheck.records.rules import RULES

@@ -7,7 +7,7 @@ import math
 
 from speccheck.physics import hazards
 from speccheck.physics.quantities import BY_NAME
-from speccheck.physics.stages import Beam, typical
+from speccheck.physics.beam import Beam, typical
 from speccheck.reading.units import format_number
 from speccheck.reading.values import Stated, ValueProblem
 from speccheck.records.findings import Cell
@@ -82,7 +82,7 @@ def costliest(walk, columns: list, need: Stated) -> str:
         f = b.value / a.value
         if factor is None or (f < factor if wants_more else f > factor):
             worst, factor = after, f
-    if worst is None or (wants_more and factor >= 1) or (not wants_more and factor <= 1):
+    if worst is None or (wants_more and factor >= 0.99) or (not wants_more and factor <= 1.01):
         return ""
     change = f"loses a factor {1 / factor:.3g}" if wants_more else f"grows it by a factor {factor:.3g}"
     return f" The stage that costs the most is {worst!r}: it {change} in {q.replace('_', ' ')}."
@@ -102,11 +102,12 @@ def compensation(walk, last: str, beam: Beam, at: tuple) -> None:
     except (ValueError, OverflowError, ZeroDivisionError, FloatingPointError):
         return
     net = made.numbers.net
-    tod_text = f" and {tod * 1e45:.4g} fs³" if abs(tod) * (4.0 / tl) ** 3 / 6.0 >= 0.01 else ""
+    tod_text = f" and {format_number(tod * 1e45, 4)} fs³" if abs(tod) * (4.0 / tl) ** 3 / 6.0 >= 0.01 else ""
     walk.report.add("dispersion-compensation",
                     f"at {last!r} the pulse is {walk.show('pulse_duration', typical(tau), 'fs')} against "
                     f"{walk.show('pulse_duration', tl, 'fs')} transform-limited: the net GDD there is "
-                    f"{net[0][1] * 1e30:.4g} fs² (TOD {net[1][1] * 1e45:.4g} fs³); adding {gdd * 1e30:.4g} fs²"
+                    f"{format_number(net[0][1] * 1e30, 4)} fs² (TOD {format_number(net[1][1] * 1e45, 4)} fs³); adding "
+                    f"{format_number(gdd * 1e30, 4)} fs²"
                     f"{tod_text} (a compressor or prechirp) would give the highest peak power", at, key=True)
 
 

@@ -23,7 +23,10 @@ from speccheck.checking.stage_checks import CHECKS, Visit, checks_of
 from speccheck.physics import hazards, materials
 from speccheck.physics.quantities import BY_NAME
 from speccheck.physics.shapes import DEFAULT_SHAPE, PULSE_SHAPES
-from speccheck.physics.stages import PARAM_TOLERANCES, STAGE_KINDS, Beam, StageContext, point, scaled
+from speccheck.physics.beam import Beam, StageContext, point, scaled
+from speccheck.physics.pulse_stages import StageProblem
+from speccheck.physics.stages import PARAM_TOLERANCES, STAGE_KINDS
+from speccheck.reading.angles import parse_angle
 from speccheck.reading.units import choose_unit, format_quantity
 from speccheck.reading.values import Stated, ValueProblem
 from speccheck.records.findings import Cell
@@ -100,7 +103,8 @@ class PathWalk:
                 out[p.name] = raw
                 continue
             try:
-                s = self.c.values.parse_as(label, raw, p.dimension, self.param_tolerance(p.name),
+                s = parse_angle(label, raw, self.param_tolerance(p.name)) if p.dimension == "angle" else \
+                    self.c.values.parse_as(label, raw, p.dimension, self.param_tolerance(p.name),
                                            signed=p.dimension in _SIGNED)
             except ValueProblem as e:
                 self.report.add(e.rule, e.message, at + (p.name,), quantities=(label,))
@@ -111,7 +115,7 @@ class PathWalk:
                                 f"{', '.join(f'{c:g}' for c in p.choices)}", at + (p.name,))
                 ok = False
                 continue
-            signed = p.dimension in _SIGNED
+            signed = p.dimension in _SIGNED or p.dimension == "angle"
             low, typ, high = s.low, s.typical, s.high
             if typ is None:  # a bound or {min, max}: a stage needs both ends, and works on the middle
                 if not math.isfinite(high) or (low <= 0.0 and not signed) or s.text.lstrip()[:1] in "<>≤≥=":
@@ -241,12 +245,15 @@ class PathWalk:
             try:
                 out = kind.apply(beam, params, ctx)
                 _in_range(out)
+            except StageProblem as exc:
+                self.report.add("stage-parameter", f"{name}: {exc}", here, key=True)
+                return  # the beam after this stage is not known
             except NUMERIC_FAILURES as exc:
                 self.out_of_range(name, kind, here, exc)
                 return  # the beam after this stage is not known: the rest of the branch cannot follow
             visit = Visit(name, kind, stage, params, here, incident, out, stage.get("measured"), columns)
-            for text in notes:
-                self.report.add("stage-model", f"{name}: {text}", here, key=True)
+            if notes:  # one finding: the report keeps one of a rule per place
+                self.report.add("stage-model", f"{name}: " + "; ".join(notes), here, key=True)
             for check in checks_of(kind, "incident"):
                 self.run_check(check, visit)
             cells = self.column(name, visit.beam, visit.measured, here, columns[-1])

@@ -66,6 +66,9 @@ class Pulse:
     windows: tuple[Window, ...] = (Window((0.0, 0.0)),)
     shaped: bool = False  # a stage has changed the temporal profile: the field's numbers apply
     sign_unknown: bool = False
+    # the share of the energy in the main peak at the laser (a pedestal, ``energy_in_main_peak``): the
+    # field is the main peak's, the pedestal is taken as too long to add to the peak
+    share: Value = (1.0, 1.0, 1.0)
 
     def adding(self, terms: tuple, gdd=(0.0, 0.0), tod=(0.0, 0.0)) -> "Pulse":
         """The pulse after phase-only terms (typical) with their tolerances as GDD and TOD ranges
@@ -80,7 +83,8 @@ class Pulse:
         ratio = env.tl / self.envelope.tl
         tl = tuple(x * ratio for x in self.tl)
         return Pulse(env, self.omega0 * order, tl, (), tuple(w.scaled(1.0 / order, 1.0 / order**2)
-                                                            for w in self.windows), True, self.sign_unknown)
+                                                            for w in self.windows), True, self.sign_unknown,
+                     self.share)
 
     # ------------------------------------------------------------- numbers
     @cached_property
@@ -123,13 +127,15 @@ class Pulse:
                     for t in tods:
                         points.append(self._at(s, g, t))
         durations = [p.duration for p in points]
-        factors = [p.peak_factor for p in points]
-        mains = [p.main_peak for p in points]
+        lo, mid, hi = self.share
+        factors = [p.peak_factor * k for p in points for k in (lo, hi)]
+        mains = [p.main_peak * k for p in points for k in (lo, hi)]
         gdd, tod, fod = self.taylor
         net_gdd = (gdd + min(w.gdd[0] for w in self.windows), gdd, gdd + max(w.gdd[1] for w in self.windows))
         net_tod = (tod + min(w.tod[0] for w in self.windows), tod, tod + max(w.tod[1] for w in self.windows))
-        return Numbers((min(durations), typ.duration, max(durations)), (min(factors), typ.peak_factor, max(factors)),
-                       (min(mains), typ.main_peak, max(mains)), (net_gdd, net_tod, (fod, fod, fod)), typ.phase_rms)
+        return Numbers((min(durations), typ.duration, max(durations)),
+                       (min(factors), typ.peak_factor * mid, max(factors)), (min(mains), typ.main_peak * mid, max(mains)),
+                       (net_gdd, net_tod, (fod, fod, fod)), typ.phase_rms)
 
     def _tod_matters(self, w: Window) -> bool:
         x = 4.0 / self.envelope.tl
@@ -167,36 +173,50 @@ class Pulse:
 
 
 def at_laser(shape: str, tl: Value, duration: Value | None, omega0: float, chirp: str | None,
-             gdd: Value | None, tod: Value | None) -> tuple[Pulse, list[str]]:
+             gdd: Value | None, tod: Value | None, share: Value = (1.0, 1.0, 1.0),
+             tl_from: str = "bandwidth") -> tuple[Pulse, list[str]]:
     """The laser's pulse: its shape at τ0, with the chirp that gives its stated duration.
 
     ``chirp`` is "positive", "negative" or None; ``gdd`` and ``tod`` (signed intervals) are the
-    chirp the laser's pulse carries, where the spec states it.  Returns the pulse and the
-    model notes to say at the first stage that uses the field."""
+    chirp the laser's pulse carries, where the spec states it; ``share`` the energy in its main
+    peak; ``tl_from`` where τ0 came from ("bandwidth", "measured" or "duration": none known, the
+    pulse is then transform limited).  Returns the pulse and the model notes to say at the first
+    stage that uses the field."""
     notes = []
     if shape not in ("gaussian", "sech2", "flat_top"):
         notes.append(f"the {shape} shape has no transform limit, so its field is taken as a Gaussian's of "
                      "the same duration")
         shape = "gaussian"
+    if share[1] < 1.0:
+        notes.append(f"{share[1]:.3g} of the laser's energy is in its main peak: the field is the main peak's, "
+                     "and the rest (a pedestal) is taken as too long to add to the peak power")
     env = F.Envelope(tl[1], shape)
+    made = dict(share=share)
     if gdd is not None:
         terms = [F.Poly(2, gdd[1])] + ([F.Poly(3, tod[1])] if tod is not None else [])
         window = Window((gdd[0] - gdd[1], gdd[2] - gdd[1]),
                         (tod[0] - tod[1], tod[2] - tod[1]) if tod is not None else (0.0, 0.0))
-        return Pulse(env, omega0, tl, tuple(terms), (window,)), notes
-    if duration is None or duration[1] is None or duration[1] <= tl[1] * 1.001:
-        return Pulse(env, omega0, tl), notes
+        return Pulse(env, omega0, tl, tuple(terms), (window,), **made), notes
+    if tl_from == "duration":
+        notes.append("the laser block states no bandwidth (or measured spectrum), so its pulse is taken as "
+                     "transform limited; state spectral_bandwidth to carry its chirp")
+        return Pulse(env, omega0, tl, **made), notes
+    if duration is None or duration[1] is None:
+        notes.append("the laser block states no pulse_duration, so its pulse is taken at its transform limit")
+        return Pulse(env, omega0, tl, **made), notes
+    if duration[1] <= tl[1] * 1.001:
+        return Pulse(env, omega0, tl, **made), notes
     corners = [F.gdd_for_duration(shape, t0, d) for t0 in (tl[0], tl[2]) for d in (duration[0], duration[2])
                if t0 > 0 and math.isfinite(d) and d > 0]
     typ = F.gdd_for_duration(shape, tl[1], duration[1])
     lo, hi = min(corners + [typ]), max(corners + [typ])
     sign = -1.0 if chirp == "negative" else 1.0
     terms = (F.Poly(2, sign * typ),)
-    window = Window((sign * lo - sign * typ, sign * hi - sign * typ) if sign > 0 else (-hi + typ, -lo + typ))
+    window = Window((lo - typ, hi - typ) if sign > 0 else (-hi + typ, -lo + typ))
     if chirp in ("positive", "negative"):
-        return Pulse(env, omega0, tl, terms, (window,)), notes
+        return Pulse(env, omega0, tl, terms, (window,), **made), notes
     other = Window((-hi - typ, -lo - typ))
     notes.append("the laser's pulse is longer than its transform limit and the sign of its chirp is not "
                  "stated, so every duration after a dispersive stage covers both signs (the typical value "
                  "takes positive chirp, common practice); state laser.chirp: positive or negative")
-    return Pulse(env, omega0, tl, terms, (window, other), sign_unknown=True), notes
+    return Pulse(env, omega0, tl, terms, (window, other), sign_unknown=True, **made), notes

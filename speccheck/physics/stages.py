@@ -19,92 +19,11 @@ numpy.
 from __future__ import annotations
 
 import math
-from dataclasses import dataclass, field, replace
+from dataclasses import dataclass, replace
 from typing import Callable
 
-CARRIED = ("wavelength", "repetition_rate", "pulse_energy", "average_power", "pulse_duration",
-           "spectral_bandwidth", "beam_diameter", "m2", "peak_power_factor")
-
-Value = tuple  # (low, typical, high); low 0 / high inf when unbounded; typical may be None
-
-
-def scaled(v: Value, f: Value) -> Value:
-    """The product of two positive intervals."""
-    typ = v[1] * f[1] if v[1] is not None and f[1] is not None else None
-    return (v[0] * f[0], typ, v[2] * f[2])
-
-
-def inverted(v: Value) -> Value:
-    return (1.0 / v[2] if v[2] > 0 else 0.0, 1.0 / v[1] if v[1] else None,
-            1.0 / v[0] if v[0] > 0 else math.inf)
-
-
-def point(x: float) -> Value:
-    return (x, x, x)
-
-
-def typical(v: Value) -> float | None:
-    if v[1] is not None:
-        return v[1]
-    if v[0] > 0 and math.isfinite(v[2]):
-        return math.sqrt(v[0] * v[2])
-    return None
-
-
-@dataclass(frozen=True)
-class LaserPulse:
-    """What the laser block says about its pulse, to build its field from when a stage needs it."""
-
-    shape: str
-    tl: Value | None  # s, the transform-limited duration (from the bandwidth, a measured spectrum or τ0)
-    duration: Value | None
-    chirp: str | None = None  # "positive" | "negative" | None
-    gdd: Value | None = None  # s², the chirp the laser's pulse carries (signed)
-    tod: Value | None = None  # s³
-
-
-@dataclass(frozen=True)
-class Beam:
-    values: dict  # quantity -> Value
-    laser: LaserPulse | None = None
-    pulse: object = None  # physics.pulse.Pulse once a stage has needed the field
-    stage_gdd: Value | None = None  # s², what the last stage added
-
-    def get(self, q: str) -> Value | None:
-        return self.values.get(q)
-
-    def with_values(self, **changes) -> "Beam":
-        values = dict(self.values)
-        for q, v in changes.items():
-            if v is None:
-                values.pop(q, None)
-            else:
-                values[q] = v
-        return replace(self, values=values)
-
-    def field(self, ctx) -> object | None:
-        """The pulse as a field (``physics.pulse.Pulse``), built from the laser on first use; None
-        where the numbers do not determine it (no duration and no bandwidth, no wavelength)."""
-        if self.pulse is not None:
-            return self.pulse
-        lam = self.get("wavelength")
-        if self.laser is None or self.laser.tl is None or not lam or not typical(lam) or not typical(self.laser.tl):
-            return None
-        from speccheck.physics import pulse
-
-        tl = self.laser.tl
-        tl = (tl[0] or tl[1], typical(tl), tl[2] if math.isfinite(tl[2]) else typical(tl))
-        made, notes = pulse.at_laser(self.laser.shape, tl, self.laser.duration, 2.0 * math.pi * ctx.c / typical(lam),
-                                     self.laser.chirp, self.laser.gdd, self.laser.tod)
-        for text in notes:
-            ctx.note(text)
-        return made
-
-    def with_pulse(self, made, ctx) -> "Beam":
-        """The beam carrying the pulse ``made``: its duration and peak-power factor from the field."""
-        n = made.numbers
-        return replace(self, pulse=made).with_values(pulse_duration=n.duration, peak_power_factor=n.peak_factor)
-
+from speccheck.physics.beam import LaserPulse, Value, inverted, point, scaled, transmit
+from speccheck.physics.pulse_stages import compressor, dispersion, grating_compressor, harmonic, material, prism_compressor
 
 # ------------------------------------------------------------------ stage kinds
 
@@ -141,30 +60,16 @@ class StageKind:
         return next((p for p in self.params if p.name == name), None)
 
 
-@dataclass(frozen=True)
-class StageContext:
-    c: float
-    transform_limit: float  # of the pulse shape
-    gvd: Callable[[str, float], float]  # (material, wavelength m) -> s²/m
-    tod: Callable[[str, float, float], float] = field(default=lambda m, lam, length: 0.0)  # -> s³
-    note: Callable[[str], None] = field(default=lambda text: None)
-
-
 _T = Param("transmission", "1", default=1.0, fraction=True)
 
 
-def _transmit(beam: Beam, t: Value) -> Beam:
-    return beam.with_values(**{q: scaled(beam.get(q), t) for q in ("pulse_energy", "average_power")
-                               if beam.get(q)})
-
-
 def _optic(beam, p, ctx):
-    return _transmit(beam, p["transmission"])
+    return transmit(beam, p["transmission"])
 
 
 def _picker(beam, p, ctx):
     n = p["divide_by"]
-    beam = _transmit(beam, p["transmission"])
+    beam = transmit(beam, p["transmission"])
     changes = {}
     if beam.get("repetition_rate"):
         changes["repetition_rate"] = scaled(beam.get("repetition_rate"), inverted(n))
@@ -187,90 +92,6 @@ def _amplifier(beam, p, ctx):
         return beam
     return beam.with_values(**{q: scaled(beam.get(q), gain) for q in ("pulse_energy", "average_power")
                                if beam.get(q)})
-
-
-def _add_phase(beam: Beam, ctx, terms: Callable, gdd: Value, tod: Value | None = None) -> Beam:
-    """The beam after a phase-only stage: ``terms(typical values)`` gives its phase terms;
-    the tolerances of its GDD and TOD widen the pulse's windows."""
-    made = beam.field(ctx)
-    beam = replace(beam, stage_gdd=gdd)
-    if made is None:
-        ctx.note("the pulse's duration after this stage is not known: the laser block needs a duration or a "
-                 "bandwidth, and a wavelength")
-        return beam.with_values(pulse_duration=None)
-    spread_tod = (tod[0] - tod[1], tod[2] - tod[1]) if tod is not None else (0.0, 0.0)
-    made = made.adding(terms(), (gdd[0] - gdd[1], gdd[2] - gdd[1]), spread_tod)
-    return beam.with_pulse(made, ctx)
-
-
-def _poly_terms(gdd: Value, tod: Value | None, fod: Value | None):
-    from speccheck.physics.field import Poly
-
-    return lambda: tuple(Poly(k, v[1]) for k, v in ((2, gdd), (3, tod), (4, fod)) if v is not None and v[1])
-
-
-def _dispersion(beam, p, ctx):
-    return _add_phase(beam, ctx, _poly_terms(p["gdd"], p.get("tod"), p.get("fod")), p["gdd"], p.get("tod"))
-
-
-def _material(beam, p, ctx):
-    lam = beam.get("wavelength")
-    if lam is None or typical(lam) is None:
-        ctx.note("the wavelength is not known here, so the material's dispersion cannot be computed")
-        return _transmit(beam, p["transmission"])
-    gvd = ctx.gvd(p["material"], typical(lam))
-    thickness = p["thickness"]
-    gdd = tuple(sorted((gvd * thickness[0], gvd * thickness[2]))) if gvd else (0.0, 0.0)
-    value = (gdd[0], gvd * thickness[1], gdd[1])
-    tod = ctx.tod(p["material"], typical(lam), thickness[1])
-    tod_value = tuple(sorted((tod / thickness[1] * thickness[0], tod / thickness[1] * thickness[2])))
-
-    def terms():
-        from speccheck.physics.field import glass
-        return (glass(p["material"], thickness[1], ctx.c),)
-    return _add_phase(_transmit(beam, p["transmission"]), ctx, terms, value, (tod_value[0], tod, tod_value[1]))
-
-
-def _compressor(beam, p, ctx):
-    beam = _transmit(beam, p["transmission"])
-    if p.get("gdd") is None:
-        return beam
-    return _add_phase(beam, ctx, _poly_terms(p["gdd"], p.get("tod"), p.get("fod")), p["gdd"], p.get("tod"))
-
-
-def _harmonic(beam, p, ctx):
-    n = int(round(p["order"][1]))
-    root = math.sqrt(n)
-    eff = p["efficiency"]
-    changes = {q: scaled(beam.get(q), eff) for q in ("pulse_energy", "average_power") if beam.get(q)}
-    if beam.get("wavelength"):
-        changes["wavelength"] = scaled(beam.get("wavelength"), point(1.0 / n))
-    if beam.get("pulse_duration"):  # the field's, where the pump's field is known (below)
-        changes["pulse_duration"] = scaled(beam.get("pulse_duration"), point(1.0 / root))
-    if beam.get("spectral_bandwidth"):
-        changes["spectral_bandwidth"] = scaled(beam.get("spectral_bandwidth"), point(root))
-    if beam.get("beam_diameter"):
-        # the n-th power of a Gaussian profile exp(-2r²/w²) is exp(-2n r²/w²): a 1/e² width w/√n, with
-        # the same Rayleigh range and wavefront (undepleted pump, near field)
-        changes["beam_diameter"] = scaled(beam.get("beam_diameter"), point(1.0 / root))
-    m2 = beam.get("m2")
-    ctx.note(f"the harmonic's beam taken as D/√{n} with the pump's Rayleigh range and wavefront (undepleted "
-             "pump, thin crystal, a TEM00 Gaussian beam)" + (
-                 "; with an M² above 1 this is only an estimate" if m2 and (m2[1] or m2[2]) > 1.05 else ""))
-    made = beam.field(ctx)
-    beam = beam.with_values(**changes)
-    if made is None:
-        ctx.note(f"duration and bandwidth of the harmonic taken as τ/√{n} and √{n}·Δν (Gaussian pulse, "
-                 "undepleted pump, no group-velocity mismatch: common practice)")
-        return beam
-    ctx.note(f"the harmonic's field taken as E(t)^{n} of the pump's field (thin crystal, undepleted pump, no "
-             "group-velocity mismatch)")
-    made = made.harmonic(n)
-    beam = beam.with_pulse(made, ctx)
-    if beam.get("spectral_bandwidth"):
-        bw = made.envelope.bandwidth() / (2.0 * math.pi)
-        beam = beam.with_values(spectral_bandwidth=(bw * made.tl[1] / made.tl[2], bw, bw * made.tl[1] / made.tl[0]))
-    return beam
 
 
 def _parametric(beam, p, ctx):
@@ -344,6 +165,11 @@ PARAM_TOLERANCES: dict[str, tuple[float, str]] = {
     "gdd": (0.05, "a designed or measured GDD: about 5% (common practice)"),
     "tod": (0.10, "a third-order dispersion: about 10% (common practice)"),
     "fod": (0.20, "a fourth-order dispersion: about 20% (common practice)"),
+    "groove_density": (0.0001, "a ruled or holographic grating's line count: far better than 0.1% (common practice)"),
+    "incidence_angle": (0.005, "an angle set on a rotation stage: about 0.5% (common practice)"),
+    "separation": (0.01, "a distance set on a translation stage: about 1% (common practice)"),
+    "apex_separation": (0.01, "a distance set on a translation stage: about 1% (common practice)"),
+    "insertion": (0.05, "a prism's insertion depth: about 5% (common practice)"),
     "magnification": (0.01, "a telescope's focal-length ratio: about 1% (common practice)"),
     "divide_by": (0.0, "a whole number of pulses: exact"),
     "order": (0.0, "a harmonic order: exact"),
@@ -365,16 +191,26 @@ STAGE_KINDS: dict[str, StageKind] = {k.name: k for k in (
               _amplifier, "energy × gain, or the output energy or power; rate unchanged",
               one_of=("gain", "output_energy", "output_power")),
     StageKind("dispersion", (Param("gdd", "s^2", required=True), Param("tod", "s^3"), Param("fod", "s^4")),
-              _dispersion, "adds spectral phase GDD·Δω²/2 + TOD·Δω³/6 + FOD·Δω⁴/24 (a prechirp, a chirped "
+              dispersion, "adds spectral phase GDD·Δω²/2 + TOD·Δω³/6 + FOD·Δω⁴/24 (a prechirp, a chirped "
               "mirror set)", "the pulse's field, by FFT (physics/field.py)"),
     StageKind("material", (Param("material", "material_name", required=True), Param("thickness", "m", required=True),
                            _T),
-              _material, "a thickness of a named glass: the exact phase n(ω)ωL/c of its Sellmeier equation",
+              material, "a thickness of a named glass: the exact phase n(ω)ωL/c of its Sellmeier equation",
               "the Sellmeier equation, to all orders (GDD = GVD × L shown)", checks=("self-focusing", "dispersion-range")),
-    StageKind("compressor", (Param("gdd", "s^2"), Param("tod", "s^3"), Param("fod", "s^4"), _T), _compressor,
+    StageKind("compressor", (Param("gdd", "s^2"), Param("tod", "s^3"), Param("fod", "s^4"), _T), compressor,
               "a compressor given by its dispersion: GDD, TOD, FOD and a transmission"),
+    StageKind("grating_compressor", (Param("groove_density", "1/m", required=True),
+                                     Param("incidence_angle", "angle", required=True),
+                                     Param("separation", "m", required=True), _T), grating_compressor,
+              "a double-pass grating pair: perpendicular separation G, first order",
+              "E. B. Treacy, IEEE J. Quantum Electron. 5, 454 (1969): the grating equation, exact phase"),
+    StageKind("prism_compressor", (Param("material", "material_name", required=True),
+                                   Param("apex_separation", "m", required=True),
+                                   Param("insertion", "m", default=0.0), _T), prism_compressor,
+              "a double-pass Brewster prism pair: apex separation and insertion depth",
+              "R. L. Fork, O. E. Martinez and J. P. Gordon, Opt. Lett. 9, 150 (1984): ray geometry, exact phase"),
     StageKind("harmonic", (Param("order", "1", required=True, choices=(2.0, 3.0)),
-                           Param("efficiency", "1", required=True, fraction=True)), _harmonic,
+                           Param("efficiency", "1", required=True, fraction=True)), harmonic,
               "second or third harmonic: λ ÷ order, energy × efficiency"),
     StageKind("parametric", (Param("signal_wavelength", "m"), Param("idler_wavelength", "m"),
                              Param("output", "text", choices=("signal", "idler")),

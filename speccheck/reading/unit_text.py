@@ -83,8 +83,13 @@ class Constants:
     m_e: float
 
 
+# A grating's line count is written per length ("1200 lines/mm", "1200 l/mm", "1200 gr/mm"): the count
+# is a pure number (and "l" would be pint's litre), so it reads as "1/mm".
+_LINES_PER = re.compile(r"^(?:lines?|grooves?|gr|l)\s*/\s*(?=(?:[a-zµμ]{0,2}m)$)")
+
+
 def normalise_unit_text(text: str) -> str:
-    text = text.strip()
+    text = _LINES_PER.sub("1/", text.strip())
     text = text.translate(_SUPERSCRIPTS)  # "cm⁻¹" -> "cm⁻^1"
     text = _SUPER_MINUS.sub(lambda m: "^-" + m.group(1), text)  # -> "cm^-1"
     return text.replace("**", "^")

@@ -165,7 +165,7 @@ def format_number(x: float, digits: int = 4) -> str:
 
 
 def pretty_unit(text: str) -> str:
-    return text.replace("^2", "²").replace("^3", "³").replace("^-1", "⁻¹").replace("**", "^")
+    return text.replace("^2", "²").replace("^3", "³").replace("^4", "⁴").replace("^-1", "⁻¹").replace("**", "^")
 
 
 def choose_unit(units: UnitSystem, si_value: float, display_unit: str, keep: bool = False) -> str:

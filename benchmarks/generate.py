@@ -233,10 +233,11 @@ def make_spec(rng: random.Random, index: int, error: str | None, lab: str) -> tu
 
 
 def _period(t: float) -> str:
+    # six figures: a period restates the rate, which is known to 0.01 % (quantities.py)
     for unit, factor in (("ns", 1e-9), ("µs", 1e-6), ("ms", 1e-3)):
         if t / factor < 1000:
-            return f"{sig(t / factor, 3)} {unit}"
-    return f"{sig(t, 3)} s"
+            return f"{sig(t / factor, 6)} {unit}"
+    return f"{sig(t, 6)} s"
 
 
 def _restyle(rng: random.Random, text: str, tolerance: float, narrow: bool = False) -> str:
@@ -311,11 +312,19 @@ _STAGES = (
 )
 
 
-def path_block(rng: random.Random, n_stages: int) -> str:
-    """A beam path of ``n_stages`` invented stages, ending at a loose focus."""
+_GLASS_COMPRESSOR = (
+    "{{name: {name}, kind: material, material: fused_silica, thickness: {mm} mm}}",
+    "{{name: {name}, kind: compressor, gdd: -{gdd} fs^2, transmission: {a}%}}",
+)
+
+
+def path_block(rng: random.Random, n_stages: int, kinds: str = "mixed") -> str:
+    """A beam path of ``n_stages`` invented stages, ending at a loose focus (``kinds``: "mixed", or
+    "glass-compressor" for a glass, a compressor, …)."""
     lines = ["path:"]
+    stages = _GLASS_COMPRESSOR if kinds == "glass-compressor" else _STAGES
     for k in range(n_stages - 1):
-        template = _STAGES[k % len(_STAGES)]
+        template = stages[k % len(stages)]
         lines.append("  - " + template.format(name=f"s{k}", t=rng.choice((95, 98, 99)), mm=rng.choice((1, 2, 3)),
                                                gdd=rng.choice((50, 100, 200)), m=rng.choice((0.9, 1, 1.1)),
                                                a=rng.choice((80, 90))))
@@ -324,7 +333,7 @@ def path_block(rng: random.Random, n_stages: int) -> str:
 
 
 def generate(n: int, folder, seed: int = 0, error_rate: float = 0.05, path_rate: float = 0.1,
-             stages: int | None = None) -> list[dict]:
+             stages: int | None = None, kinds: str = "mixed") -> list[dict]:
     """Write ``n`` specs under ``folder`` (in a few lab subfolders); return one record per spec.
 
     A share ``path_rate`` of them gets a short beam path; with ``stages`` every spec gets a path
@@ -338,7 +347,7 @@ def generate(n: int, folder, seed: int = 0, error_rate: float = 0.05, path_rate:
         text, record = make_spec(rng, i, error, lab)
         n_stages = stages if stages is not None else (3 if rng.random() < path_rate else 0)
         if n_stages and "beam_diameter" in text and "wavelength" in text:
-            text += path_block(rng, n_stages)
+            text += path_block(rng, n_stages, kinds)
             record["stages"] = n_stages
         sub = folder / lab
         sub.mkdir(parents=True, exist_ok=True)

@@ -7,7 +7,8 @@ interpreter) with this process's environment passed through (so
 ``PYTHONPATH=/work/main`` reaches it), run from a temporary folder.  Each
 figure is the best of ``--repeat`` runs, with the median beside it.
 
-1. Throughput over 1,000 generated specs:
+1. Throughput over 1,000 generated specs (1b: each with a glass, a compressor and a focus,
+   the field's case; with ``--jobs 2`` beside it):
    (a) ``python -m speccheck check --format json FOLDER``
    (b) a reference that does strictly less: read the same files, parse each
        with PyYAML's C loader and validate it against the JSON Schema
@@ -230,6 +231,21 @@ def main(argv: list[str] | None = None) -> int:
         row("(a) speccheck check --format json", a, f"   {a[0] / 1000 * 1e3:.2f} ms/file")
         row("(b) reference: read + C YAML + jsonschema", b, f"   {b[0] / 1000 * 1e3:.2f} ms/file")
         print(f"  ratio a/b: {a[0] / b[0]:.2f}x (best)   {a[1] / b[1]:.2f}x (median)")
+        print()
+
+        # ------------------------------------------- 1b. every spec with a pulse path
+        print("1b. Throughput, 1,000 specs each with a three-stage path (glass, compressor, focus)")
+        folder = tmp / "specs-path"
+        generate(1000, folder, seed=args.seed, error_rate=0.0, stages=3, kinds="glass-compressor")
+        runner.once(check_args(str(folder)), ok=CHECK_OK)
+        ap = runner.time(check_args(str(folder)), ok=CHECK_OK)
+        aj = runner.time(check_args(str(folder)) + ["--jobs", "2"], ok=CHECK_OK)
+        bp = runner.time([str(reference), args.schema, str(folder)])
+        row("(a) speccheck check --format json", ap, f"   {ap[0] / 1000 * 1e3:.2f} ms/file")
+        row("(a2) the same with --jobs 2", aj, f"   {aj[0] / 1000 * 1e3:.2f} ms/file")
+        row("(b) reference: read + C YAML + jsonschema", bp, f"   {bp[0] / 1000 * 1e3:.2f} ms/file")
+        print(f"  ratio a/b: {ap[0] / bp[0]:.2f}x (best)   {ap[1] / bp[1]:.2f}x (median);   "
+              f"with --jobs 2: {aj[0] / bp[0]:.2f}x (best)   {aj[1] / bp[1]:.2f}x (median)")
         print()
 
         # ---------------------------------------------------------- 2. cold start

@@ -10,7 +10,6 @@ ever opened for reading.
 from __future__ import annotations
 
 import argparse
-import dataclasses
 import errno
 import os
 import re
@@ -19,7 +18,6 @@ from pathlib import Path
 
 from speccheck._version import __version__
 from speccheck import files
-from speccheck.records.findings import FileResult
 from speccheck.reading.loader import MAX_DEPTH, Limits
 
 MAX_FILE_SIZE = 1024 * 1024 * 1024  # the largest --max-file-size: a spec is read whole into memory
@@ -53,6 +51,8 @@ def _parser() -> argparse.ArgumentParser:
     c.add_argument("--no-color", action="store_true", help="never colour the output (also: NO_COLOR=1)")
     c.add_argument("--color", action="store_true", help="colour the output even when it is not a terminal")
     c.add_argument("--no-sheet", action="store_true", help="human format: findings only, no sheet")
+    c.add_argument("--jobs", "-j", type=_positive_int, default=1, metavar="N",
+                   help="check the files in N processes (the report is the same; gains only with more cores)")
     limits = c.add_argument_group("input limits (each file that exceeds one gets an input-limit finding)")
     limits.add_argument("--max-file-size", type=_positive_int, default=Limits.max_bytes, metavar="BYTES",
                         help=f"largest spec file read (default {Limits.max_bytes})")
@@ -115,7 +115,6 @@ def _fail_level(args, config) -> str:
 
 def _check(args, stdout, stderr, stdin=None) -> int:
     from speccheck.reading import config as cfg
-    from speccheck.reading import suppress
     from speccheck.checking.document import Checker, Options
     from speccheck.formats import OutputOptions, writer
     from speccheck.reading.units import UnitSystem
@@ -160,33 +159,15 @@ def _check(args, stdout, stderr, stdin=None) -> int:
     if args.max_depth > MAX_DEPTH:
         stderr.write(f"speccheck: --max-depth {args.max_depth} is more than speccheck can read; using {MAX_DEPTH}\n")
     limits = Limits(max_bytes=args.max_file_size, max_nodes=args.max_nodes, max_depth=args.max_depth)
-    reader = files.DataReader()
-    checker = Checker(units, Options(limits=limits, tolerance=config.tolerance, tolerances=config.tolerances), read=reader)
-    results: list[FileResult] = []
-    io_failure = bool(expansion.unmatched)
-    for name, path in expansion.files:
-        shown = files.STDIN_NAME if name == "-" else files.printable(name)
-        try:
-            data = files.read_stdin(stdin, limits.max_bytes) if name == "-" else files.read_spec(path, limits.max_bytes)
-        except MemoryError:
-            exc = OSError(errno.ENOMEM, "not enough memory to read it (lower --max-file-size)")
-            io_failure = True
-            stderr.write(f"speccheck: cannot read {shown}: {files.reason(exc)}\n")
-            results.append(files.read_failure(shown, exc))
-            continue
-        except OSError as exc:
-            io_failure = True
-            stderr.write(f"speccheck: cannot read {shown}: {files.reason(exc)}\n")
-            results.append(files.read_failure(shown, exc))
-            continue
-        try:
-            result = checker.check_text(data, shown)
-            findings = suppress.apply(data, result.findings, shown)
-        except Exception as exc:  # the last line of defence: one file's failure costs only that file
-            io_failure = True
-            results.append(files.internal_error(shown, exc))
-            continue
-        results.append(result if findings is result.findings else dataclasses.replace(result, findings=findings))
+    from speccheck import batch as batches
+
+    done = batches.check_files(expansion.files, lambda reader: Checker(
+        units, Options(limits=limits, tolerance=config.tolerance, tolerances=config.tolerances), read=reader),
+        limits.max_bytes, stdin, args.jobs)
+    for message in done.messages:
+        stderr.write(message)
+    results = done.results
+    io_failure = bool(expansion.unmatched) or done.failed
     results = cfg.apply(results, config)
     fail_on = _fail_level(args, config)
     to_terminal = args.output is None and hasattr(stdout, "isatty") and stdout.isatty()
@@ -196,7 +177,7 @@ def _check(args, stdout, stderr, stdin=None) -> int:
     write = writer(chosen)
     code = 2 if io_failure else 1 if cfg.failing(results, fail_on) else 0
     if target is not None:
-        read_data = [p for p in reader.read_paths if files.same_file(str(target), Path(p))]
+        read_data = [p for p in done.read_paths if files.same_file(str(target), Path(p))]
         if read_data:
             stderr.write(f"speccheck: cannot write {files.printable(args.output)}: it is "
                          f"{files.printable(read_data[0])}, a data file this run reads; input files are never "

@@ -196,3 +196,22 @@ def test_review_of_a_path_speaks_of_its_end_not_of_every_stage():
 def test_a_folder_without_specs_says_so(tmp_path):
     code, out, err = cli("check", str(tmp_path))
     assert code == 0 and "no spec files" in err and "0 files" in out
+
+
+def test_jobs_gives_the_same_report_as_one_process(tmp_path):
+    import io
+    import shutil
+    from pathlib import Path
+
+    from speccheck.cli import run
+
+    examples = Path(__file__).resolve().parent.parent / "example_specs"
+    for f in sorted(examples.glob("*.yaml"))[:6]:
+        shutil.copy(f, tmp_path / f.name)
+    outs = []
+    for extra in ([], ["--jobs", "2"]):
+        out, err = io.StringIO(), io.StringIO()
+        code = run(["check", "--no-config", "--format", "json", *extra, str(tmp_path)], out, err)
+        outs.append((code, out.getvalue()))
+    assert outs[0] == outs[1]
+    assert outs[0][1].count('"path"') >= 6

@@ -29,10 +29,10 @@ from __future__ import annotations
 
 import math
 from dataclasses import dataclass, field
-from functools import lru_cache
-from typing import Callable
 
 import numpy as np
+
+from speccheck.physics.phase_terms import _d2, _d3, _d4, total_phase
 
 _LN2 = math.log(2.0)
 _SECH2_T = 2.0 * math.acosh(math.sqrt(2.0))  # a sech² pulse's FWHM over its width T
@@ -54,7 +54,7 @@ def shape_amplitude(shape: str, x: np.ndarray) -> np.ndarray:
 
 
 # the half-width in x = Δω·τ0 beyond which the shape's amplitude is negligible
-_SUPPORT = {"gaussian": 9.0, "sech2": 16.0, "flat_top": 600.0}
+_SUPPORT = {"gaussian": 9.0, "sech2": 16.0, "flat_top": 60.0}  # flat top: band limited here (its sinc falls as 1/x)
 
 
 @dataclass(frozen=True)
@@ -116,80 +116,6 @@ def _unwrapped(values: np.ndarray) -> np.ndarray:
     return phase
 
 
-# ---------------------------------------------------------------- phase terms
-@dataclass(frozen=True)
-class Poly:
-    """c·Δω^k/k!: GDD (k = 2, s²), TOD (k = 3, s³), FOD (k = 4, s⁴)."""
-
-    order: int
-    coefficient: float
-
-    def phase(self, omega0: float, dw: np.ndarray) -> np.ndarray:
-        return self.coefficient * dw**self.order / math.factorial(self.order)
-
-    def taylor(self, omega0: float) -> tuple[float, float, float]:
-        return tuple(self.coefficient if self.order == k else 0.0 for k in (2, 3, 4))
-
-
-@dataclass(frozen=True)
-class Exact:
-    """An exact phase φ(ω) (absolute ω, rad/s), its constant and group delay at ω0 removed:
-    a glass's k(ω)·L, a grating or prism pair.  ``fn`` is vectorised."""
-
-    name: str
-    fn: Callable[[np.ndarray], np.ndarray] = field(compare=False)
-
-    def phase(self, omega0: float, dw: np.ndarray) -> np.ndarray:
-        h = 1e-4 * omega0
-        p0, pp, pm = self.fn(np.array([omega0, omega0 + h, omega0 - h]))
-        return self.fn(omega0 + dw) - p0 - (pp - pm) / (2.0 * h) * dw
-
-    def taylor(self, omega0: float) -> tuple[float, float, float]:
-        """GDD, TOD and FOD at ω0 by central differences of the exact phase."""
-        h = 2e-3 * omega0
-        k = np.arange(-3, 4)
-        p = self.fn(omega0 + k * h)
-        return _d2(p, h), _d3(p, h), _d4(p, h)
-
-
-def _d2(p, h):  # sixth-order central differences on seven points
-    return (2 * p[0] - 27 * p[1] + 270 * p[2] - 490 * p[3] + 270 * p[4] - 27 * p[5] + 2 * p[6]) / (180 * h**2)
-
-
-def _d3(p, h):
-    return (p[0] - 8 * p[1] + 13 * p[2] - 13 * p[4] + 8 * p[5] - p[6]) / (8 * h**3)
-
-
-def _d4(p, h):
-    return (-p[0] + 12 * p[1] - 39 * p[2] + 56 * p[3] - 39 * p[4] + 12 * p[5] - p[6]) / (6 * h**4)
-
-
-def glass(material: str, thickness: float, c: float) -> Exact:
-    """The exact phase of a glass plate: φ(ω) = n(ω) ω L / c (Sellmeier equation)."""
-    from speccheck.physics import materials
-
-    mat = materials.lookup(material)
-
-    def fn(omega: np.ndarray) -> np.ndarray:
-        lam = 2.0 * math.pi * c / omega
-        return materials.refractive_index(mat, lam) * omega * thickness / c
-
-    return Exact(f"{mat.name} {thickness:g} m", fn)
-
-
-def total_phase(terms, omega0: float, dw: np.ndarray) -> np.ndarray:
-    out = np.zeros_like(dw)
-    for term in terms:
-        out = out + term.phase(omega0, dw)
-    return out
-
-
-def taylor(terms, omega0: float) -> tuple[float, float, float]:
-    """Net GDD, TOD and FOD at ω0 of the phase terms."""
-    parts = [t.taylor(omega0) for t in terms]
-    return tuple(float(sum(p[k] for p in parts)) for k in range(3)) if parts else (0.0, 0.0, 0.0)
-
-
 # ---------------------------------------------------------------- the field
 @dataclass(frozen=True)
 class Measures:
@@ -215,10 +141,17 @@ def sample(env: Envelope, terms, omega0: float, scale: float = 1.0, extra=(0.0, 
     coarse = np.linspace(-half, half, 257)
     amp = np.abs(env.at(coarse, scale))
     live = amp > 1e-3 * amp.max()
-    phi = _phase(terms, omega0, coarse, extra)
-    delay = np.gradient(phi, coarse)[live]
+    with np.errstate(invalid="ignore"):
+        phi = _phase(terms, omega0, np.where(live, coarse, 0.0), extra)
+        delay = np.gradient(phi, coarse)
+    # the group delay where the spectrum matters, its neighbours too (no step at the edge of ``live``)
+    inner = live & np.isfinite(delay) & np.roll(live, 1) & np.roll(live, -1)
+    delay = delay[inner]
     spread = float(np.max(np.abs(delay))) if delay.size else 0.0
-    window = 2.0 * (2.5 * spread + 16.0 * tl) * oversample
+    # a power of two times 32 τ0 (the envelope's own), so the columns of a path share grids
+    need_window = 2.0 * (2.5 * spread + 16.0 * tl) * oversample
+    base = 32.0 * env.tl
+    window = base * 2.0 ** max(0, math.ceil(math.log2(need_window / base)))
     step = 2.0 * math.pi / window
     need = int(math.ceil(2.0 * half / step))
     n = 1 << max(9, (need - 1).bit_length())
@@ -253,17 +186,73 @@ def measure(env: Envelope, terms, omega0: float, scale: float = 1.0, extra=(0.0,
 _PAD = 4
 
 
+def measure_set(env: Envelope, terms, omega0: float, points) -> list[Measures]:
+    """``measure`` at each (scale, extra GDD, extra TOD) of ``points``, on one grid wide enough for all
+    of them, with the terms' phase computed once (the corners of one column)."""
+    points = list(points)
+    widest = min(p[0] for p in points)
+    g = max(abs(p[1]) for p in points)
+    t = max(abs(p[2]) for p in points)
+    half, window, n = sample(env, terms, omega0, widest)
+    # the corners' extra group delay at the edge of the spectrum that matters widens the window
+    reach = min(_support(env, widest), half)
+    extra_window = 2.0 * 2.5 * (g * reach + t * reach * reach / 2.0)
+    if extra_window > 0:
+        base = 32.0 * env.tl
+        window = base * 2.0 ** max(0, math.ceil(math.log2((window + extra_window) / base)))
+        n = 1 << max(9, (int(math.ceil(2.0 * half * window / (2.0 * math.pi))) - 1).bit_length())
+    if n > MAX_POINTS:
+        return [measure(env, terms, omega0, *p[:1], p[1:]) for p in points]
+    step = 2.0 * math.pi / window
+    dw = np.fft.fftfreq(n, 1.0 / (n * step))
+    inside = np.abs(dw) < 0.95 * omega0
+    with np.errstate(invalid="ignore"):
+        base_phase = total_phase(terms, omega0, np.where(inside, dw, 0.0))
+    out = []
+    m = _PAD * n
+    dt = window / m
+    times = (np.arange(m) - m // 2) * dt
+    for scale, gdd, tod in points:
+        amp = env.at(dw, scale)
+        mag = np.abs(amp)
+        live = (mag > _FLOOR * mag.max()) & inside
+        phi = base_phase + (gdd * dw**2 / 2.0 if gdd else 0.0) + (tod * dw**3 / 6.0 if tod else 0.0)
+        undefined = live & ~np.isfinite(phi)
+        if np.any(undefined & (mag > 1e-3 * mag.max())):
+            raise ValueError("a phase is not defined across the pulse's spectrum (beyond the range of its "
+                             "formula)")
+        live &= ~undefined
+        phi = np.where(live, phi, 0.0)
+        spec = np.where(live, amp, 0.0) * np.exp(1j * phi)
+        padded = np.zeros(m, dtype=complex)
+        padded[: n // 2], padded[-(n // 2):] = spec[: n // 2], spec[n // 2:]
+        intensity = np.abs(np.fft.fftshift(np.fft.fft(padded))) ** 2
+        out.append(_measures(times, intensity, dt, spec, dw, phi))
+    return out
+
+
 def _spectrum(env, terms, omega0, scale, extra, window, n):
     """(offsets in numpy's order, the complex spectrum, its phase) on n points over ``window``."""
     step = 2.0 * math.pi / window
     dw = np.fft.fftfreq(n, 1.0 / (n * step))
     amp = env.at(dw, scale)
-    live = np.abs(amp) > _FLOOR * np.abs(amp).max()
-    phi = np.where(live, _phase(terms, omega0, np.where(live, dw, 0.0), extra), 0.0)
+    mag = np.abs(amp)
+    live = (mag > _FLOOR * mag.max()) & (np.abs(dw) < 0.95 * omega0)  # the grid may reach past zero frequency
+    with np.errstate(invalid="ignore"):
+        phi = np.where(live, _phase(terms, omega0, np.where(live, dw, 0.0), extra), 0.0)
+    undefined = ~np.isfinite(phi)
+    if np.any(undefined):  # beyond a glass formula's range: only where the spectrum carries nothing
+        if np.any(undefined & (mag > 1e-3 * mag.max())):
+            raise ValueError("a phase is not defined across the pulse's spectrum (beyond the range of its "
+                             "formula)")
+        live &= ~undefined
+        phi = np.where(undefined, 0.0, phi)
     return dw, np.where(live, amp, 0.0) * np.exp(1j * phi), phi
 
 
 def _measures(t, intensity, dt, spec, dw, phi) -> Measures:
+    if not np.all(np.isfinite(intensity)) or not intensity.max() > 0.0:
+        raise ValueError("the field is not finite")
     k = int(np.argmax(intensity))
     peak = _peak(intensity, k)
     half = peak / 2.0
@@ -332,68 +321,3 @@ def stationary_phase(env, terms, omega0, scale, extra, half) -> Measures:
     energy = float(np.sum(amp)) * (dw[1] - dw[0])
     a = peak * duration / energy
     return Measures(duration, a, 1.0, float("nan"), "stationary-phase")
-
-
-def time_profile(env: Envelope, terms, omega0: float, scale: float = 1.0, points: int = 400):
-    """(t, I(t)/max) around the pulse, for plots."""
-    half, window, n = sample(env, terms, omega0, scale)
-    n = min(n, MAX_POINTS)
-    _, spec, _ = _spectrum(env, terms, omega0, scale, (0.0, 0.0), window, n)
-    inten = np.abs(np.fft.fftshift(np.fft.fft(spec))) ** 2
-    t = (np.arange(n) - n // 2) * (window / n)
-    hot = np.flatnonzero(inten > 1e-3 * inten.max())
-    lo, hi = max(hot[0] - 2, 0), min(hot[-1] + 3, n)
-    stride = max(1, (hi - lo) // points)
-    return t[lo:hi:stride], inten[lo:hi:stride] / inten.max()
-
-
-def harmonic(env: Envelope, terms, omega0: float, order: int) -> Envelope:
-    """The n-th harmonic's envelope in the thin-crystal limit: E_n(t) ∝ E(t)^n, carried as a
-    sampled spectrum about n·ω0 (its own τ0 from its flat-phase transform)."""
-    half, window, n = sample(env, terms, omega0, oversample=8.0)  # a fine spectral step: it is interpolated
-    n = min(n, MAX_POINTS)
-    window = n * (2.0 * half / n) if n == MAX_POINTS else window
-    dw, spec, _ = _spectrum(env, terms, omega0, 1.0, (0.0, 0.0), window, n)
-    e_t = np.fft.fft(spec)
-    out = np.fft.ifft(e_t ** order)
-    out = out / np.abs(out).max()
-    order_idx = np.argsort(dw)
-    offsets, values = dw[order_idx], out[order_idx]
-    return sampled(offsets, values, omega0 * order)
-
-
-def sampled(offsets: np.ndarray, values: np.ndarray, omega0: float) -> Envelope:
-    """A sampled complex spectrum (offsets ascending, rad/s) as an envelope, with the
-    transform-limited FWHM of its flat-phase pulse as its τ0."""
-    mag = np.abs(values)
-    power = mag**2
-    hot = offsets[power >= power.max() / 2.0]
-    width = max(float(hot[-1] - hot[0]), float(np.min(np.diff(offsets))))
-    guess = 2.0 * math.pi * 0.44 / width  # a Gaussian's τ0 for that FWHM: only to size the grid
-    flat = Envelope(guess, None, offsets, mag.astype(complex))
-    return Envelope(measure(flat, (), omega0).duration, None, offsets, values)
-
-
-# -------------------------------------------------------- broadening by GDD alone
-@lru_cache(maxsize=8)
-def broadening_curve(shape: str) -> tuple[np.ndarray, np.ndarray]:
-    """τ/τ0 of a pulse of the shape against x = GDD/τ0², for 0 ≤ x ≤ 1e3 (by FFT, once per
-    process); beyond, the asymptote GDD·Δω_FWHM/τ0 of stationary phase."""
-    env = Envelope(1.0, shape)
-    xs = np.concatenate([[0.0], np.geomspace(1e-3, 1e3, 121)])
-    ratios = np.array([measure(env, (Poly(2, x),), 1e3).duration for x in xs])
-    return xs, np.maximum.accumulate(ratios)
-
-
-def gdd_for_duration(shape: str, tl: float, duration: float) -> float:
-    """|GDD| that stretches a flat-phase pulse of the shape from τ0 to ``duration``."""
-    if shape == "gaussian":  # the closed form, τ = τ0 √(1 + (4 ln2 φ/τ0²)²)
-        r = max(duration / tl, 1.0)
-        return tl * tl / (4.0 * _LN2) * math.sqrt(r * r - 1.0)
-    xs, ratios = broadening_curve(shape)
-    r = duration / tl
-    if r <= 1.0:
-        return 0.0
-    if r > ratios[-1]:
-        return xs[-1] * tl * tl * r / ratios[-1]
-    return float(np.interp(r, ratios, xs)) * tl * tl

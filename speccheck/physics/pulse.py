@@ -27,13 +27,22 @@ import math
 from dataclasses import dataclass, replace
 from functools import cached_property
 
+from speccheck.physics import broadening as B
 from speccheck.physics import field as F
+from speccheck.physics import phase_terms as T
+from speccheck.physics import harmonics as H
 from speccheck.physics.dispersion import broadened_duration
 from speccheck.physics.shapes import PULSE_SHAPES
 
 Value = tuple  # (low, typical, high)
 GAUSSIAN_A = PULSE_SHAPES["gaussian"].peak_power_factor
 _NEGLIGIBLE = 0.01  # rad: phase beyond second order that changes no duration visibly
+# x·τ0 out to which a shape's spectrum matters for that test: its intensity is 1e-3 of its peak there
+_REACH = {"gaussian": 4.0, "sech2": 6.0, "flat_top": 60.0}
+# A flat top's field here is band limited (its spectrum cut at ±60/τ0), so its peak overshoots by the
+# Gibbs factor (measured: P_pk·τ/E = 1.1806 unchirped, against the shape's 1): its peak-power factors are
+# divided by it.  The Gaussian's and sech²'s agree with their closed forms to 1e-7 (tests/test_field.py).
+_GIBBS = {"flat_top": 1.0 / 1.18061459220468}
 
 
 @dataclass(frozen=True)
@@ -79,7 +88,7 @@ class Pulse:
     def harmonic(self, order: int) -> "Pulse":
         """E(t)^order of the typical field (thin crystal, undepleted): the windows' GDD and TOD
         become φ2/n and φ3/n² (the phase of E^n at n times the offsets)."""
-        env = F.harmonic(self.envelope, self.terms, self.omega0, order)
+        env = H.harmonic(self.envelope, self.terms, self.omega0, order)
         ratio = env.tl / self.envelope.tl
         tl = tuple(x * ratio for x in self.tl)
         return Pulse(env, self.omega0 * order, tl, (), tuple(w.scaled(1.0 / order, 1.0 / order**2)
@@ -90,7 +99,7 @@ class Pulse:
     @cached_property
     def taylor(self) -> tuple[float, float, float]:
         """Net GDD, TOD, FOD at the carrier: the envelope's own phase and the terms'."""
-        own, added = self.envelope.taylor(), F.taylor(self.terms, self.omega0)
+        own, added = self.envelope.taylor(), T.taylor(self.terms, self.omega0)
         return tuple(a + b for a, b in zip(own, added))
 
     @cached_property
@@ -98,34 +107,45 @@ class Pulse:
         return self._closed_form()
 
     def _closed_form(self) -> bool:
-        if self.envelope.shape != "gaussian":
+        """A shape's envelope whose phase beyond second order is negligible: the Gaussian closed form,
+        or the shape's broadening table (``broadening_data.py``), instead of an FFT."""
+        if self.envelope.shape is None:
             return False
         _, tod, fod = self.taylor
-        x = 4.0 / (self.envelope.tl * min(1.0, self.tl[0] / self.tl[1]))
+        x = _REACH[self.envelope.shape] / (self.envelope.tl * min(1.0, self.tl[0] / self.tl[1]))
         tods = [abs(tod + t) for w in self.windows for t in w.tod]
         return max(tods) * x**3 / 6.0 + abs(fod) * x**4 / 24.0 < _NEGLIGIBLE
 
     def _at(self, scale: float, gdd: float, tod: float) -> F.Measures:
-        if self._closed:
+        shape = self.envelope.shape
+        if self._closed and shape == "gaussian":
             return F.Measures(broadened_duration(self.envelope.tl * scale, self.taylor[0] + gdd), GAUSSIAN_A,
                               1.0, float("nan"), "closed form")
-        return F.measure(self.envelope, self.terms, self.omega0, scale, (gdd, tod))
+        if self._closed:
+            duration, factor, main = B.broadened(shape, self.envelope.tl * scale, self.taylor[0] + gdd)
+            return F.Measures(duration, factor * _GIBBS.get(shape, 1.0), main, float("nan"), "table")
+        m = F.measure(self.envelope, self.terms, self.omega0, scale, (gdd, tod))
+        return replace(m, peak_factor=m.peak_factor * _GIBBS.get(shape, 1.0))
 
     @cached_property
     def numbers(self) -> Numbers:
-        typ = self._at(1.0, 0.0, 0.0)
         scales = sorted({self.tl[0] / self.tl[1], self.tl[2] / self.tl[1]}) if self.tl[1] else [1.0]
-        points = [typ]
+        corners = [(1.0, 0.0, 0.0)]
         for w in self.windows:
             tods = sorted(set(w.tod)) if self._tod_matters(w) else [0.0]
             gdds = list(w.gdd)
             best = -self.taylor[0]  # cancels the typical net GDD: the shortest pulse, near enough
             if w.gdd[0] < best < w.gdd[1]:
                 gdds.append(best)
-            for s in scales:
-                for g in gdds:
-                    for t in tods:
-                        points.append(self._at(s, g, t))
+            corners += [(s, g, t) for s in scales for g in gdds for t in tods]
+        corners = list(dict.fromkeys(corners))
+        if self._closed:
+            points = [self._at(*c) for c in corners]
+        else:
+            points = F.measure_set(self.envelope, self.terms, self.omega0, corners)
+            gibbs = _GIBBS.get(self.envelope.shape, 1.0)
+            points = [replace(p, peak_factor=p.peak_factor * gibbs) for p in points]
+        typ = points[0]
         durations = [p.duration for p in points]
         lo, mid, hi = self.share
         factors = [p.peak_factor * k for p in points for k in (lo, hi)]
@@ -143,21 +163,21 @@ class Pulse:
 
     def compensation(self) -> tuple[float, float]:
         """The GDD and TOD to add for the highest peak power: the negatives of the net GDD and TOD
-        at the carrier, then a few steps of coordinate search on the peak power (which differs
-        from them where fourth and higher orders remain)."""
-        gdd0, tod0, _ = self.taylor
+        at the carrier, then, where fourth and higher orders matter (over 0.05 rad across the
+        spectrum), a few steps of coordinate search on the peak power."""
+        gdd0, tod0, fod = self.taylor
         best = (-gdd0, -tod0)
-        if self._closed_form():
+        tl = self.envelope.tl
+        if self.envelope.shape is not None and abs(fod) * (_REACH[self.envelope.shape] / tl) ** 4 / 24.0 < 0.05:
             return best
 
         def peak(g, t):
             m = F.measure(self.envelope, self.terms, self.omega0, 1.0, (g, t))
             return m.peak_factor / m.duration
 
-        tl = self.envelope.tl
         step = [0.05 * tl * tl, 0.05 * tl**3]
         value = peak(*best)
-        for _ in range(12):
+        for _ in range(8):
             moved = False
             for k in (0, 1):
                 for sign in (1, -1):
@@ -193,7 +213,7 @@ def at_laser(shape: str, tl: Value, duration: Value | None, omega0: float, chirp
     env = F.Envelope(tl[1], shape)
     made = dict(share=share)
     if gdd is not None:
-        terms = [F.Poly(2, gdd[1])] + ([F.Poly(3, tod[1])] if tod is not None else [])
+        terms = [T.Poly(2, gdd[1])] + ([T.Poly(3, tod[1])] if tod is not None else [])
         window = Window((gdd[0] - gdd[1], gdd[2] - gdd[1]),
                         (tod[0] - tod[1], tod[2] - tod[1]) if tod is not None else (0.0, 0.0))
         return Pulse(env, omega0, tl, tuple(terms), (window,), **made), notes
@@ -206,12 +226,12 @@ def at_laser(shape: str, tl: Value, duration: Value | None, omega0: float, chirp
         return Pulse(env, omega0, tl, **made), notes
     if duration[1] <= tl[1] * 1.001:
         return Pulse(env, omega0, tl, **made), notes
-    corners = [F.gdd_for_duration(shape, t0, d) for t0 in (tl[0], tl[2]) for d in (duration[0], duration[2])
+    corners = [B.gdd_for_duration(shape, t0, d) for t0 in (tl[0], tl[2]) for d in (duration[0], duration[2])
                if t0 > 0 and math.isfinite(d) and d > 0]
-    typ = F.gdd_for_duration(shape, tl[1], duration[1])
+    typ = B.gdd_for_duration(shape, tl[1], duration[1])
     lo, hi = min(corners + [typ]), max(corners + [typ])
     sign = -1.0 if chirp == "negative" else 1.0
-    terms = (F.Poly(2, sign * typ),)
+    terms = (T.Poly(2, sign * typ),)
     window = Window((lo - typ, hi - typ) if sign > 0 else (-hi + typ, -lo + typ))
     if chirp in ("positive", "negative"):
         return Pulse(env, omega0, tl, terms, (window,), **made), notes

@@ -25,7 +25,7 @@ def add_phase(beam: Beam, ctx, terms: Callable, gdd: Value, tod: Value | None = 
 
 
 def _poly_terms(gdd: Value, tod: Value | None, fod: Value | None):
-    from speccheck.physics.field import Poly
+    from speccheck.physics.phase_terms import Poly
 
     return lambda: tuple(Poly(k, v[1]) for k, v in ((2, gdd), (3, tod), (4, fod)) if v is not None and v[1])
 
@@ -47,7 +47,7 @@ def material(beam, p, ctx):
     tod_value = tuple(sorted((tod / thickness[1] * thickness[0], tod / thickness[1] * thickness[2])))
 
     def terms():
-        from speccheck.physics.field import glass
+        from speccheck.physics.phase_terms import glass
         return (glass(p["material"], thickness[1], ctx.c),)
     return add_phase(transmit(beam, p["transmission"]), ctx, terms, value, (tod_value[0], tod, tod_value[1]))
 
@@ -138,8 +138,17 @@ def grating_compressor(beam, p, ctx):
     gdd_value, tod_value = _spread(gap, float(gdd), float(tod))
 
     def terms():
-        from speccheck.physics.field import Exact
-        return (Exact("grating pair", lambda w: compressors.grating_pair_phase(w, density, angle, gap[1], ctx.c)),)
+        import numpy as np
+
+        from speccheck.physics.phase_terms import Exact
+
+        def fn(w):  # NaN where the first order does not exist (the far wings of the grid)
+            ok = np.abs(2.0 * math.pi * ctx.c / w * density - math.sin(angle)) < 1.0
+            out = np.full(w.shape, np.nan)
+            if np.any(ok):
+                out[ok] = compressors.grating_pair_phase(w[ok], density, angle, gap[1], ctx.c)
+            return out
+        return (Exact("grating pair", fn),)
     return add_phase(beam, ctx, terms, gdd_value, tod_value)
 
 
@@ -164,6 +173,6 @@ def prism_compressor(beam, p, ctx):
     gdd_value, tod_value = _spread(apex, float(gdd), float(tod))
 
     def terms():
-        from speccheck.physics.field import Exact
+        from speccheck.physics.phase_terms import Exact
         return (Exact("prism pair", lambda w: compressors.prism_pair_phase(w, name, apex[1], depth, lam0, ctx.c)),)
     return add_phase(beam, ctx, terms, gdd_value, tod_value)

@@ -228,3 +228,17 @@ def test_the_broadening_table_is_what_the_fft_gives(shape):
         # known less well: measured up to 2.4 %, against 0.01 % for sech²
         assert duration == pytest.approx(m.duration, rel=3e-4)
         assert factor == pytest.approx(m.peak_factor, rel=2e-4 if shape == "sech2" else 3e-2)
+
+
+def test_a_spec_whose_path_never_changes_the_pulse_never_imports_numpy():
+    import subprocess
+    import sys
+    from pathlib import Path
+
+    root = Path(__file__).resolve().parent.parent
+    code = ("import io, sys\nfrom speccheck.cli import run\n"
+            "for name in ('oscillator-consistent.yaml', 'mirror-damage.yaml'):\n"
+            "    run(['check', '--format', 'json', '--no-config', 'example_specs/' + name], io.StringIO(), io.StringIO())\n"
+            "print('numpy' in sys.modules)\n")
+    out = subprocess.run([sys.executable, "-c", code], cwd=root, capture_output=True, text=True, check=True)
+    assert out.stdout.strip() == "False"

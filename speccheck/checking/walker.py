@@ -358,6 +358,8 @@ def _failure(exc: Exception) -> str:
         return "a number overflows"
     if isinstance(exc, ZeroDivisionError):
         return "a division by zero"
+    if isinstance(exc, ValueError) and "spectrum" in str(exc):  # the field's own words: say them
+        return str(exc)
     return "a number outside a formula's domain"
 
 

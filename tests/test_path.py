@@ -408,3 +408,102 @@ path:
 """)
     assert not [f for f in r.findings if f.rule in ("out-of-model-range", "internal-error")], r.findings
     assert value(r, "s0", "pulse_duration") > 9.4e-15
+
+
+# ---- the laser's own chirp against its stated duration
+_CHIRPED = """
+laser:
+  wavelength: 800 nm
+  pulse_energy: 1 mJ
+  repetition_rate: 1 kHz
+  spectral_bandwidth: 30 nm
+{extra}
+path:
+  - {{name: m, kind: dispersion, gdd: 0 fs^2}}
+"""
+
+
+def test_a_laser_gdd_that_gives_another_duration_is_a_mismatch(check):
+    # τ0 = 0.4413 λ²/(c Δλ) = 31.4 fs; 5000 fs² stretches it to τ0 √(1 + (4 ln2·5000/τ0²)²) = 442 fs
+    # (the Gaussian closed form, by hand), far from the stated 35 fs
+    r = check(_CHIRPED.format(extra="  pulse_duration: 35 fs\n  gdd: 5000 fs^2"))
+    mismatch = [f for f in r.findings if f.rule == "laser-chirp-mismatch"]
+    assert len(mismatch) == 1 and mismatch[0].line == 8  # spec_version is line 1
+    assert "442" in mismatch[0].message or "441" in mismatch[0].message
+    # 175 fs² gives 35 fs (the same closed form inverted): no mismatch
+    r = check(_CHIRPED.format(extra="  pulse_duration: 35 fs\n  gdd: 175 fs^2"))
+    assert "laser-chirp-mismatch" not in [f.rule for f in r.findings]
+
+
+def test_a_laser_gdd_without_a_duration_says_the_duration_it_gives(check):
+    r = check(_CHIRPED.format(extra="  gdd: 5000 fs^2"))
+    note = [f for f in r.findings if f.rule == "stage-model" and f.line == 7]
+    assert note and ("442" in note[0].message or "441" in note[0].message)
+    tl = 0.4413 / (299792458 * 30e-9 / 800e-9**2)
+    expected = tl * math.sqrt(1 + (4 * math.log(2) * 5000e-30 / tl**2) ** 2)
+    assert cell(r, "pulse_duration", "m").value == pytest.approx(expected, rel=2e-3)
+
+
+def test_a_duration_at_its_transform_limit_keeps_the_chirp_its_tolerance_allows(check):
+    # 31.4 fs ± 10 % on a 31.4 fs transform limit: up to 34.5 fs, i.e. |φ| ≤ τ0²/(4 ln2) √(1.1² − 1) = 163 fs²
+    # of either sign (the closed form inverted, by hand).  After +300 fs² the pulse lasts from
+    # τ(300 − 163) to τ(300 + 163), not only τ(300).
+    tl = 0.4413 / (299792458 * 30e-9 / 800e-9**2)
+    r = check(_CHIRPED.format(extra=f"  pulse_duration: {tl * 1e15:.3f} fs ± 10%").replace("gdd: 0 fs^2", "gdd: 300 fs^2 ± 0.1%"))
+    phi = tl**2 / (4 * math.log(2)) * math.sqrt(1.1**2 - 1)
+    tau = lambda g: tl * math.sqrt(1 + (4 * math.log(2) * g / tl**2) ** 2)  # noqa: E731
+    d = cell(r, "pulse_duration", "m")
+    assert d.value == pytest.approx(tau(300e-30), rel=2e-3)
+    assert d.low == pytest.approx(tau(300e-30 - phi), rel=0.02)
+    assert d.high == pytest.approx(tau(300e-30 + phi), rel=0.02)
+
+
+def test_a_model_failure_in_its_own_words_is_said_at_the_stage():
+    from speccheck.checking.walker import _failure
+    from speccheck.physics.model_range import OutOfModelRange
+
+    assert _failure(OutOfModelRange("the spectrum reaches zero frequency")) == "the spectrum reaches zero frequency"
+    assert _failure(ValueError("math domain error")) == "a number outside a formula's domain"
+
+
+def test_a_signed_stage_gdd_may_be_given_as_min_and_max(check):
+    # the compressor's −5000 fs² ± 1000 fs² as {min, max}: its middle cancels 5000 fs² of laser chirp
+    r = check(_CHIRPED.format(extra="  gdd: 5000 fs^2").replace(
+        "{name: m, kind: dispersion, gdd: 0 fs^2}", "{name: m, kind: compressor, gdd: {min: -6000 fs^2, max: -4000 fs^2}}"))
+    assert not [f for f in r.findings if f.severity == "error"]
+    d = cell(r, "pulse_duration", "m")
+    tl = 0.4413 / (299792458 * 30e-9 / 800e-9**2)
+    # the interval holds the transform limit (GDD 0 inside) and reaches τ(±1000 fs²) (closed form, by hand)
+    assert d.low == pytest.approx(tl, rel=2e-3)
+    assert d.high == pytest.approx(tl * math.sqrt(1 + (4 * math.log(2) * 1000e-30 / tl**2) ** 2), rel=0.02)
+
+
+def test_a_signed_stage_gdd_open_on_one_side_is_refused_and_the_target_is_not_judged(check):
+    r = check(_CHIRPED.format(extra="  gdd: 5000 fs^2").replace(
+        "{name: m, kind: dispersion, gdd: 0 fs^2}", "{name: m, kind: compressor, gdd: {max: -4000 fs^2}}")
+        + "target:\n  pulse_duration: '<= 50 fs'\n")
+    got = rules_of(r)
+    assert ("stage-parameter", 9) in got
+    assert ("target-unknown", 10) in got and "target-met" not in [f.rule for f in r.findings]
+
+
+def test_a_dispersion_stage_may_add_only_third_order(check):
+    # +1000 fs³ then −1000 fs³: the second cancels the first, back to the transform limit
+    r = check(_CHIRPED.format(extra="").replace(
+        "{name: m, kind: dispersion, gdd: 0 fs^2}",
+        "{name: m, kind: dispersion, tod: 1000 fs^3}\n  - {name: n, kind: compressor, tod: -1000 fs^3}"))
+    tl = 0.4413 / (299792458 * 30e-9 / 800e-9**2)
+    assert cell(r, "pulse_duration", "m").value > tl * 1.001
+    assert cell(r, "pulse_duration", "n").value == pytest.approx(tl, rel=1e-3)
+
+
+def test_a_prism_pair_of_air_is_refused(check):
+    r = check(_CHIRPED.format(extra="").replace(
+        "{name: m, kind: dispersion, gdd: 0 fs^2}", "{name: m, kind: prism_compressor, material: air, apex_separation: 500 mm}"))
+    assert ("stage-parameter", 9) in rules_of(r)
+
+
+def test_a_lorentzian_laser_with_a_bandwidth_is_taken_as_a_gaussian_of_that_bandwidth(check):
+    r = check(_CHIRPED.format(extra="  pulse_duration: 20 fs\n  pulse_shape: lorentzian"))
+    note = " ".join(f.message for f in r.findings if f.rule == "stage-model")
+    assert "no transform limit" in note and "31.4 fs" in note and "no bandwidth" not in note

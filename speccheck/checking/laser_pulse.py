@@ -64,3 +64,32 @@ def laser_chirp(walk) -> dict:
         walk.report.add("invalid-value", f"laser.chirp: {out['chirp']} and a GDD of sign "
                         f"{'+' if out['gdd'][1] > 0 else '−'} disagree", ("laser", "chirp"))
     return out
+
+
+def chirp_duration(walk, beam: Beam, ctx) -> Beam:
+    """The duration the laser's stated GDD (and TOD) gives its pulse, against the stated duration: a
+    ``laser-chirp-mismatch`` where they cannot both hold, a note with the duration where none is stated.
+    The field is built here, so the path starts from it."""
+    chirp = beam.laser.gdd if beam.laser is not None else None
+    if chirp is None:
+        return beam
+    made = beam.field(ctx)
+    if made is None:
+        return beam
+    beam = replace(beam, pulse=made)
+    got = made.numbers.duration
+    stated = beam.get("pulse_duration")
+    shown = (walk.show("pulse_duration", got[1], "fs") if got[2] <= got[0] * 1.001 else
+             f"{walk.show('pulse_duration', got[1], 'fs')} ({walk.show('pulse_duration', got[0], 'fs')} … "
+             f"{walk.show('pulse_duration', got[2], 'fs')})")
+    key = "gdd" if isinstance(walk.data.get("laser"), dict) and "gdd" in walk.data["laser"] else "tod"
+    if stated is None:
+        walk.report.add("stage-model", f"laser.{key}: the pulse it carries lasts {shown} (its field by FFT); "
+                        "the laser column states no pulse_duration", ("laser", key), key=True)
+    elif got[0] > stated[2] * 1.001 or got[2] < stated[0] * 0.999:
+        tl = walk.show("pulse_duration", made.tl[1], "fs")
+        walk.report.add("laser-chirp-mismatch", f"laser.{key}: with the chirp the laser's pulse carries, a "
+                        f"pulse of {tl} at its transform limit lasts {shown}, but its pulse_duration is "
+                        f"{walk.show('pulse_duration', stated[1] or stated[0], 'fs')}; one of them is wrong",
+                        ("laser", key), quantities=(f"laser.{key}", "laser.pulse_duration"))
+    return beam

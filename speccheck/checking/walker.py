@@ -18,12 +18,13 @@ from dataclasses import replace
 
 from speccheck.checking import targets, wording
 from speccheck.checking.column import BlockCheck
-from speccheck.checking.laser_pulse import beam_from, laser_chirp
+from speccheck.checking.laser_pulse import beam_from, chirp_duration, laser_chirp
 from speccheck.checking.stage_checks import CHECKS, Visit, checks_of
 from speccheck.physics import hazards, materials
 from speccheck.physics.quantities import BY_NAME
 from speccheck.physics.shapes import DEFAULT_SHAPE, PULSE_SHAPES
 from speccheck.physics.beam import Beam, StageContext, point, scaled
+from speccheck.physics.model_range import OutOfModelRange
 from speccheck.physics.pulse_stages import StageProblem
 from speccheck.physics.stages import PARAM_TOLERANCES, STAGE_KINDS
 from speccheck.reading.angles import parse_angle
@@ -52,6 +53,7 @@ class PathWalk:
         self.categorical = {k: laser[k] for k in ("pulse_shape", "beam_profile") if isinstance(laser.get(k), str)}
         self.context = None
         self.ends: list[str] = []  # the last column of each branch, in the order walked
+        self.named: set[str] = set()  # the stages' names so far, computed or not
         defaults = data.get("defaults") if isinstance(data.get("defaults"), dict) else {}
         self.b_limit = self.setting(defaults, "b_integral_limit", hazards.B_INTEGRAL_LIMIT)
         self.safety_factor = self.setting(defaults, "damage_safety_factor", hazards.DAMAGE_SAFETY_FACTOR)
@@ -71,7 +73,8 @@ class PathWalk:
         shape = PULSE_SHAPES.get(self.categorical.get("pulse_shape"), PULSE_SHAPES[DEFAULT_SHAPE])
         c = self.c.units.constants.c
         return StageContext(c, shape.transform_limit, gvd=lambda m, lam: float(materials.gvd(m, lam, c)),
-                            tod=lambda m, lam, length: float(materials.tod(m, lam, length, c)), note=notes.append)
+                            tod=lambda m, lam, length: float(materials.tod(m, lam, length, c)),
+                            index=lambda m, lam: float(materials.refractive_index(m, lam)), note=notes.append)
 
     def params(self, stage: dict, kind, at: tuple, name: str) -> dict | None:
         out: dict = {}
@@ -118,7 +121,7 @@ class PathWalk:
             signed = p.dimension in _SIGNED or p.dimension == "angle"
             low, typ, high = s.low, s.typical, s.high
             if typ is None:  # a bound or {min, max}: a stage needs both ends, and works on the middle
-                if not math.isfinite(high) or (low <= 0.0 and not signed) or s.text.lstrip()[:1] in "<>≤≥=":
+                if not (math.isfinite(high) and math.isfinite(low)) or (low <= 0.0 and not signed) or s.text.lstrip()[:1] in "<>≤≥=":
                     self.report.add("stage-parameter", f"{label}: {s.text} leaves the parameter open on one "
                                     "side; a stage parameter needs a value ('3 mm', '3 mm ± 0.1 mm') or both "
                                     "ends ({min: …, max: …})", at + (p.name,), quantities=(label,))
@@ -214,8 +217,15 @@ class PathWalk:
         notes: list = []
         ctx = self.stage_context(notes)
         shape = self.categorical.get("pulse_shape", DEFAULT_SHAPE)
-        beam = beam_from(laser_cells, None, ctx.transform_limit, shape if shape in PULSE_SHAPES else DEFAULT_SHAPE,
+        # a shape without a transform limit (a Lorentzian) has its field taken as a Gaussian's: so is its τ0
+        limit = ctx.transform_limit or PULSE_SHAPES["gaussian"].transform_limit
+        beam = beam_from(laser_cells, None, limit, shape if shape in PULSE_SHAPES else DEFAULT_SHAPE,
                          laser_chirp(self))
+        try:
+            beam = chirp_duration(self, beam, ctx)
+        except NUMERIC_FAILURES as exc:  # a chirp its field cannot hold: said, and the path goes on without it
+            self.report.add("out-of-model-range", f"laser: the field of its chirped pulse cannot be computed "
+                            f"({_failure(exc)})", ("laser",), key=True)
         self.walk(self.data.get("path"), ("path",), beam, ["laser"], self.data.get("target"), ("target",))
         self.report.dedupe = False
 
@@ -223,6 +233,7 @@ class PathWalk:
         if not isinstance(stages, list):
             stages = []
         end_at = at  # the place of the branch's last stage, for what is said about its end
+        lost = None  # the stage past which the beam is not known
         for i, stage in enumerate(stages):
             here = at + (i,)
             end_at = here
@@ -232,12 +243,14 @@ class PathWalk:
             name = stage.get("name") if isinstance(stage.get("name"), str) else f"stage {len(self.sheet)}"
             if kind is None:
                 continue  # the schema names the known kinds
-            if name in self.sheet:
+            if name in self.sheet or name in self.named:
                 self.report.add("duplicate-name", f"{name!r} names two columns of the sheet; this stage is "
                                 f"shown as 'stage {len(self.sheet)}'", here + ("name",))
                 name = f"stage {len(self.sheet)}"
+            self.named.add(name)
             params = self.params(stage, kind, here, name)
-            if params is None:
+            if params is None or lost:  # past a stage whose beam is not known, parameters are only read
+                lost = lost or name
                 continue
             notes: list = []
             ctx = self.stage_context(notes)
@@ -247,10 +260,12 @@ class PathWalk:
                 _in_range(out)
             except StageProblem as exc:
                 self.report.add("stage-parameter", f"{name}: {exc}", here, key=True)
-                return  # the beam after this stage is not known
+                lost = name  # the beam after this stage is not known: the rest of the branch cannot follow
+                continue
             except NUMERIC_FAILURES as exc:
                 self.out_of_range(name, kind, here, exc)
-                return  # the beam after this stage is not known: the rest of the branch cannot follow
+                lost = name
+                continue
             visit = Visit(name, kind, stage, params, here, incident, out, stage.get("measured"), columns)
             if notes:  # one finding: the report keeps one of a rule per place
                 self.report.add("stage-model", f"{name}: " + "; ".join(notes), here, key=True)
@@ -273,7 +288,15 @@ class PathWalk:
                                     "branch its own target under branches: {…: {target: …}}", target_at,
                                     key=True)
                 return
+        if lost:
+            return self.broken(lost, target, target_at)
         targets.finish(self, columns, beam, target, target_at, end_at)
+
+    def broken(self, name: str, target, target_at: tuple) -> None:
+        """The path cannot be followed past the stage ``name``: its target is not judged."""
+        if isinstance(target, dict) and target:
+            self.report.add("target-unknown", f"the path cannot be followed past {name!r} (see the finding "
+                            "there), so this target is not judged", target_at, key=True)
 
     def split(self, name: str, kind, stage: dict, params: dict, beam: Beam, at: tuple, columns: list) -> None:
         """The two branches of a stage that splits the beam, each walked as a path of its own."""
@@ -358,7 +381,7 @@ def _failure(exc: Exception) -> str:
         return "a number overflows"
     if isinstance(exc, ZeroDivisionError):
         return "a division by zero"
-    if isinstance(exc, ValueError) and "spectrum" in str(exc):  # the field's own words: say them
+    if isinstance(exc, OutOfModelRange):  # the model's own words: say them
         return str(exc)
     return "a number outside a formula's domain"
 

@@ -101,6 +101,7 @@ class StageContext:
     transform_limit: float  # of the pulse shape
     gvd: Callable[[str, float], float]  # (material, wavelength m) -> s²/m
     tod: Callable[[str, float, float], float] = field(default=lambda m, lam, length: 0.0)  # -> s³
+    index: Callable[[str, float], float] = field(default=lambda m, lam: 1.5)  # (material, wavelength m) -> n
     note: Callable[[str], None] = field(default=lambda text: None)
 
 

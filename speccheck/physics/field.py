@@ -32,6 +32,7 @@ from dataclasses import dataclass, field
 
 import numpy as np
 
+from speccheck.physics.model_range import OutOfModelRange
 from speccheck.physics.phase_terms import _d2, _d3, _d4, total_phase
 
 _LN2 = math.log(2.0)
@@ -92,10 +93,13 @@ class Envelope:
         """GDD, TOD and FOD of the envelope's own phase at its centre (0 for a shape)."""
         if self.shape is not None:
             return (0.0, 0.0, 0.0)
-        h = 0.15 * self.bandwidth()
+        width = self.bandwidth()
+        h = 0.15 * width
         p = np.angle(self.at(np.arange(-3, 4) * h))
         p = np.unwrap(p)
-        return _d2(p, h), _d3(p, h), _d4(p, h)
+        # a term whose phase across the spectrum's FWHM stays below a microradian is rounding, not phase
+        return tuple(c if abs(c) * (width / 2.0) ** k / math.factorial(k) > 1e-6 else 0.0
+                     for c, k in ((_d2(p, h), 2), (_d3(p, h), 3), (_d4(p, h), 4)))
 
     def at(self, dw: np.ndarray, scale: float = 1.0) -> np.ndarray:
         """The complex amplitude at the offsets ``dw``, the spectrum widened by ``1/scale``
@@ -136,7 +140,7 @@ def sample(env: Envelope, terms, omega0: float, scale: float = 1.0, extra=(0.0, 
     ``extra`` adds a GDD and a TOD on top of the terms (the tolerance corners)."""
     tl = env.tl * scale
     if _support(env, scale) >= 0.95 * omega0 and abs(env.at(np.array([-0.95 * omega0]), scale)[0]) > 0.5:
-        raise ValueError("the spectrum reaches zero frequency: the bandwidth exceeds the carrier")
+        raise OutOfModelRange("the spectrum reaches zero frequency: the bandwidth exceeds the carrier")
     half = min(max(_support(env, scale), math.pi * _STEPS_PER_TL / tl), 0.95 * omega0)
     coarse = np.linspace(-half, half, 257)
     amp = np.abs(env.at(coarse, scale))
@@ -167,10 +171,12 @@ def _phase(terms, omega0, dw, extra):
     return phi
 
 
-def measure(env: Envelope, terms, omega0: float, scale: float = 1.0, extra=(0.0, 0.0)) -> Measures:
-    """Duration, peak-power factor, main-peak energy and residual phase of the field."""
+def measure(env: Envelope, terms, omega0: float, scale: float = 1.0, extra=(0.0, 0.0),
+            max_points: int = MAX_POINTS) -> Measures:
+    """Duration, peak-power factor, main-peak energy and residual phase of the field (by FFT on up
+    to ``max_points`` points, beyond them by the stationary-phase mapping)."""
     half, window, n = sample(env, terms, omega0, scale, extra)
-    if n > MAX_POINTS:
+    if n > max_points:
         return stationary_phase(env, terms, omega0, scale, extra, half)
     dw, spec, phi = _spectrum(env, terms, omega0, scale, extra, window, n)
     # zero-padded to four times the points: the time step is a quarter of the grid's
@@ -219,7 +225,7 @@ def measure_set(env: Envelope, terms, omega0: float, points) -> list[Measures]:
         phi = base_phase + (gdd * dw**2 / 2.0 if gdd else 0.0) + (tod * dw**3 / 6.0 if tod else 0.0)
         undefined = live & ~np.isfinite(phi)
         if np.any(undefined & (mag > 1e-3 * mag.max())):
-            raise ValueError("a phase is not defined across the pulse's spectrum (beyond the range of its "
+            raise OutOfModelRange("a phase is not defined across the pulse's spectrum (beyond the range of its "
                              "formula)")
         live &= ~undefined
         phi = np.where(live, phi, 0.0)
@@ -243,7 +249,7 @@ def _spectrum(env, terms, omega0, scale, extra, window, n):
     undefined = ~np.isfinite(phi)
     if np.any(undefined):  # beyond a glass formula's range: only where the spectrum carries nothing
         if np.any(undefined & (mag > 1e-3 * mag.max())):
-            raise ValueError("a phase is not defined across the pulse's spectrum (beyond the range of its "
+            raise OutOfModelRange("a phase is not defined across the pulse's spectrum (beyond the range of its "
                              "formula)")
         live &= ~undefined
         phi = np.where(undefined, 0.0, phi)
@@ -252,7 +258,7 @@ def _spectrum(env, terms, omega0, scale, extra, window, n):
 
 def _measures(t, intensity, dt, spec, dw, phi) -> Measures:
     if not np.all(np.isfinite(intensity)) or not intensity.max() > 0.0:
-        raise ValueError("the field is not finite")
+        raise OutOfModelRange("the field is not finite")
     k = int(np.argmax(intensity))
     peak = _peak(intensity, k)
     half = peak / 2.0
@@ -306,18 +312,60 @@ def _crossing(t: np.ndarray, intensity: np.ndarray, j: int, level: float) -> flo
 
 
 def stationary_phase(env, terms, omega0, scale, extra, half) -> Measures:
-    """Duration and peak-power factor of a strongly chirped pulse from t(ω) = φ'(ω),
-    I(t) = |A(ω)|²/|φ''(ω)| (stationary phase; exact in the limit of large chirp)."""
+    """Duration and peak-power factor of a strongly chirped pulse by stationary phase: each
+    frequency arrives at its group delay t(ω) = φ'(ω) (A. M. Weiner, *Ultrafast Optics*, ch. 4,
+    exact in the limit of large chirp).  The spectral energy |A(ω)|² dω is summed into bins of
+    arrival time, so a delay that turns (a glass's zero-dispersion wavelength inside the
+    spectrum) gives a finite peak, not the caustic |A|²/|φ''| → ∞, and frequencies beyond a
+    formula's range (a NaN phase) carry nothing."""
     dw = np.linspace(-half, half, 16385)
+    step = dw[1] - dw[0]
     amp = np.abs(env.at(dw, scale)) ** 2
-    live = amp > 1e-6 * amp.max()
-    phi = _phase(terms, omega0, dw, extra)
-    delay = np.gradient(phi, dw)
-    curv = np.abs(np.gradient(delay, dw))
-    inten = np.where(live, amp / np.maximum(curv, 1e-300), 0.0)
-    peak = float(inten.max())
-    hot = inten >= peak / 2.0
-    duration = float(delay[hot].max() - delay[hot].min())
-    energy = float(np.sum(amp)) * (dw[1] - dw[0])
-    a = peak * duration / energy
-    return Measures(duration, a, 1.0, float("nan"), "stationary-phase")
+    with np.errstate(invalid="ignore", divide="ignore", over="ignore"):
+        phi = _phase(terms, omega0, dw, extra)
+        delay = np.gradient(phi, dw)
+    live = (amp > 1e-9 * amp.max()) & np.isfinite(delay)
+    if np.any(~live & (amp > 1e-3 * amp.max())):
+        raise OutOfModelRange("a phase is not defined across the pulse's spectrum (beyond the range of its formula)")
+    # between neighbouring frequency samples the energy arrives evenly between their delays: a ramp of
+    # the arrived energy per interval, so branches of a delay that turns back overlap without noise
+    both = live[:-1] & live[1:]
+    a, b = np.minimum(delay[:-1], delay[1:])[both], np.maximum(delay[:-1], delay[1:])[both]
+    m = 0.5 * (amp[:-1] + amp[1:])[both] * step
+    energy = float(np.sum(m))
+    mid = 0.5 * (a + b)
+    mean = float(np.sum(m * mid)) / energy
+    spread = math.sqrt(float(np.sum(m * (mid - mean) ** 2)) / energy)
+    order = np.argsort(mid)
+    cum = np.cumsum(m[order]) / energy
+    t_lo = float(a[order][np.searchsorted(cum, 5e-7)])
+    t_hi = float(b[order][min(np.searchsorted(cum, 1.0 - 5e-7), len(cum) - 1)])
+    width = max(spread / 400.0, env.tl * scale / 4.0)
+    bins = int(min(max((t_hi - t_lo) / width, 8), 200000)) + 1
+    edges = np.linspace(t_lo - width, t_hi + width, bins + 1)
+    # times from the mean (no cancellation of large sums); a ramp narrower than a tenth of a bin is a
+    # deposit within the bin
+    arrived = _ramps(a - mean, np.maximum(b, a + width / 10.0) - mean, m, edges - mean)
+    inten = np.diff(arrived) / (edges[1] - edges[0])
+    centres = 0.5 * (edges[:-1] + edges[1:])
+    k = int(np.argmax(inten))
+    peak = float(inten[k])
+    above = np.flatnonzero(inten >= peak / 2.0)
+    lo, hi = int(above[0]), int(above[-1])
+    duration = _crossing(centres, inten, hi, peak / 2.0) - _crossing(centres, inten, lo - 1, peak / 2.0)
+    return Measures(float(duration), float(peak * duration / energy), 1.0, float("nan"), "stationary-phase")
+
+
+def _ramps(a, b, m, t):
+    """Σ_k m_k·clip((t − a_k)/(b_k − a_k), 0, 1) at each t: the energy arrived by t when m_k
+    arrives evenly over [a_k, b_k].  Each ramp is (relu(t − a) − relu(t − b))/(b − a), and a sum of
+    c·relu(t − s) is t·Σc − Σc·s over the knots s below t (cumulative sums)."""
+    span = b - a
+    knots = np.concatenate((a, b))
+    slope = np.concatenate((m / span, -m / span))
+    order = np.argsort(knots, kind="stable")
+    knots, slope = knots[order], slope[order]
+    c = np.concatenate(([0.0], np.cumsum(slope)))
+    cs = np.concatenate(([0.0], np.cumsum(slope * knots)))
+    j = np.searchsorted(knots, t, side="right")
+    return t * c[j] - cs[j]

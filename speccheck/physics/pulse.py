@@ -204,8 +204,11 @@ def at_laser(shape: str, tl: Value, duration: Value | None, omega0: float, chirp
     stage that uses the field."""
     notes = []
     if shape not in ("gaussian", "sech2", "flat_top"):
-        notes.append(f"the {shape} shape has no transform limit, so its field is taken as a Gaussian's of "
-                     "the same duration")
+        text = f"the {shape} shape has no transform limit, so its field is taken as a Gaussian's"
+        if tl_from == "bandwidth" and duration is not None and duration[1] is not None and duration[1] < tl[1] * 0.999:
+            text += (f", whose transform limit over the bandwidth ({tl[1] * 1e15:.4g} fs) is longer than the "
+                     f"stated {duration[1] * 1e15:.4g} fs: the field starts at that limit")
+        notes.append(text)
         shape = "gaussian"
     if share[1] < 1.0:
         notes.append(f"{share[1]:.3g} of the laser's energy is in its main peak: the field is the main peak's, "
@@ -224,19 +227,23 @@ def at_laser(shape: str, tl: Value, duration: Value | None, omega0: float, chirp
     if duration is None or duration[1] is None:
         notes.append("the laser block states no pulse_duration, so its pulse is taken at its transform limit")
         return Pulse(env, omega0, tl, **made), notes
-    if duration[1] <= tl[1] * 1.001:
-        return Pulse(env, omega0, tl, **made), notes
+    # the chirp that gives each corner of the duration from each corner of τ0 (none where the duration
+    # is within the transform limit): a duration at its limit may still carry a chirp within its tolerance
     corners = [B.gdd_for_duration(shape, t0, d) for t0 in (tl[0], tl[2]) for d in (duration[0], duration[2])
-               if t0 > 0 and math.isfinite(d) and d > 0]
-    typ = B.gdd_for_duration(shape, tl[1], duration[1])
+               if t0 > 0 and math.isfinite(t0) and math.isfinite(d) and d > 0]
+    typ = B.gdd_for_duration(shape, tl[1], duration[1]) if duration[1] > tl[1] * 1.001 else 0.0
     lo, hi = min(corners + [typ]), max(corners + [typ])
+    if hi <= 0.0:
+        return Pulse(env, omega0, tl, **made), notes
     sign = -1.0 if chirp == "negative" else 1.0
     terms = (T.Poly(2, sign * typ),)
     window = Window((lo - typ, hi - typ) if sign > 0 else (-hi + typ, -lo + typ))
     if chirp in ("positive", "negative"):
         return Pulse(env, omega0, tl, terms, (window,), **made), notes
     other = Window((-hi - typ, -lo - typ))
-    notes.append("the laser's pulse is longer than its transform limit and the sign of its chirp is not "
-                 "stated, so every duration after a dispersive stage covers both signs (the typical value "
-                 "takes positive chirp, common practice); state laser.chirp: positive or negative")
+    longer = ("the laser's pulse is longer than its transform limit" if typ > 0.0 else
+              "the laser's pulse may be longer than its transform limit within the tolerance of its duration")
+    notes.append(f"{longer} and the sign of its chirp is not stated, so every duration after a dispersive "
+                 "stage covers both signs (the typical value takes positive chirp, common practice); state "
+                 "laser.chirp: positive or negative")
     return Pulse(env, omega0, tl, terms, (window, other), sign_unknown=True, **made), notes

@@ -30,8 +30,12 @@ def _poly_terms(gdd: Value, tod: Value | None, fod: Value | None):
     return lambda: tuple(Poly(k, v[1]) for k, v in ((2, gdd), (3, tod), (4, fod)) if v is not None and v[1])
 
 
+_NONE = (0.0, 0.0, 0.0)
+
+
 def dispersion(beam, p, ctx):
-    return add_phase(beam, ctx, _poly_terms(p["gdd"], p.get("tod"), p.get("fod")), p["gdd"], p.get("tod"))
+    gdd = p.get("gdd") or _NONE  # a stage may add only TOD or FOD (a chirped mirror's residual)
+    return add_phase(beam, ctx, _poly_terms(gdd, p.get("tod"), p.get("fod")), gdd, p.get("tod"))
 
 
 def material(beam, p, ctx):
@@ -54,9 +58,10 @@ def material(beam, p, ctx):
 
 def compressor(beam, p, ctx):
     beam = transmit(beam, p["transmission"])
-    if p.get("gdd") is None:
+    if p.get("gdd") is None and p.get("tod") is None and p.get("fod") is None:
         return beam
-    return add_phase(beam, ctx, _poly_terms(p["gdd"], p.get("tod"), p.get("fod")), p["gdd"], p.get("tod"))
+    gdd = p.get("gdd") or _NONE
+    return add_phase(beam, ctx, _poly_terms(gdd, p.get("tod"), p.get("fod")), gdd, p.get("tod"))
 
 
 def harmonic(beam, p, ctx):
@@ -163,6 +168,10 @@ def prism_compressor(beam, p, ctx):
         ctx.note("the wavelength is not known here, so the prism pair's dispersion cannot be computed")
         return beam
     lam0, name, apex, depth = typical(lam), p["material"], p["apex_separation"], p["insertion"][1]
+    n = ctx.index(name, lam0)
+    if n < 1.2:  # no glass is below about 1.3 (from memory: fluorides ~1.38): a gas is not a prism
+        raise StageProblem(f"a prism pair needs a glass; {name}'s refractive index is {n:.6g} at "
+                           f"{lam0 * 1e9:.4g} nm, so it makes no prism")
     try:
         gdd, tod = compressors.prism_pair_dispersion(lam0, name, apex[1], depth, ctx.c)
     except ValueError as exc:

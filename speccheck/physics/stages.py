@@ -190,9 +190,9 @@ STAGE_KINDS: dict[str, StageKind] = {k.name: k for k in (
     StageKind("amplifier", (Param("gain", "1"), Param("output_energy", "J"), Param("output_power", "W")),
               _amplifier, "energy × gain, or the output energy or power; rate unchanged",
               one_of=("gain", "output_energy", "output_power")),
-    StageKind("dispersion", (Param("gdd", "s^2", required=True), Param("tod", "s^3"), Param("fod", "s^4")),
+    StageKind("dispersion", (Param("gdd", "s^2"), Param("tod", "s^3"), Param("fod", "s^4")),
               dispersion, "adds spectral phase GDD·Δω²/2 + TOD·Δω³/6 + FOD·Δω⁴/24 (a prechirp, a chirped "
-              "mirror set)", "the pulse's field, by FFT (physics/field.py)"),
+              "mirror set)", "the pulse's field, by FFT (physics/field.py)", one_of=("gdd", "tod", "fod")),
     StageKind("material", (Param("material", "material_name", required=True), Param("thickness", "m", required=True),
                            _T),
               material, "a thickness of a named glass: the exact phase n(ω)ωL/c of its Sellmeier equation",

@@ -212,7 +212,12 @@ class ValueParser:
 
     def _parse_mapping(self, key: str, raw: dict, tolerance: float) -> Stated:
         parsed: dict[str, Stated] = {}
+        signed = key in self._signed
         for name in ("min", "typical", "max"):
+            if name in raw and signed:  # the parts of a signed value (a GDD) are signed too
+                self._signed.add(f"{key}.{name}")
+                if key in self._extra:
+                    self._extra[f"{key}.{name}"] = self._extra[key]
             if name in raw:
                 if isinstance(raw[name], (dict, list)):
                     raise ValueProblem("invalid-value", f"{key}.{name}: expected a plain value like '20 W', got "
@@ -232,9 +237,10 @@ class ValueParser:
         if set(parsed) == {"typical"}:
             tolerance = _tolerance_of(tolerance, first.quantity)
             t = parsed["typical"].typical
-            _finite_spread(key, t * (1 + tolerance), text)
-            return Stated(first.quantity, t * (1 - tolerance), t * (1 + tolerance), t, first.unit, text)
-        low = parsed["min"].typical if "min" in parsed else 0.0
+            _finite_spread(key, abs(t) * (1 + tolerance), text)
+            low, high = sorted((t * (1 - tolerance), t * (1 + tolerance)))
+            return Stated(first.quantity, low, high, t, first.unit, text)
+        low = parsed["min"].typical if "min" in parsed else (-math.inf if signed else 0.0)
         high = parsed["max"].typical if "max" in parsed else math.inf
         typical = parsed["typical"].typical if "typical" in parsed else None
         if low > high or (typical is not None and not low <= typical <= high):

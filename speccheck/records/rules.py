@@ -184,6 +184,12 @@ _RULES = (
     Rule("photon-energy-not-conserved", "error", "signal and idler wavelengths that do not fit the pump",
          "In a parametric process 1/λp = 1/λs + 1/λi (photon-energy conservation).",
          "pump 800 nm, signal 1300 nm, idler 1800 nm", "pump 800 nm, signal 1300 nm, idler 2080 nm"),
+    Rule("laser-chirp-mismatch", "error", "a laser's stated GDD that does not give its stated duration",
+         "A laser block that states the GDD (and TOD) its pulse carries fixes its duration: the pulse of its "
+         "shape at the transform limit of its bandwidth, with that phase, by FFT of the field. A stated "
+         "pulse_duration outside that interval contradicts it.",
+         "laser: {pulse_duration: 100 fs, spectral_bandwidth: 15.7 nm, gdd: 5000 fs^2}",
+         "laser: {pulse_duration: 100 fs, spectral_bandwidth: 15.7 nm, gdd: 1160 fs^2}"),
     Rule("target-met", "note", "a target requirement that the path meets",
          "Each target line is a requirement at the last stage of its branch; the note gives the margin."),
     Rule("target-not-met", "error", "a target requirement that the path does not meet",

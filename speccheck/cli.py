@@ -161,8 +161,10 @@ def _check(args, stdout, stderr, stdin=None) -> int:
     limits = Limits(max_bytes=args.max_file_size, max_nodes=args.max_nodes, max_depth=args.max_depth)
     from speccheck import batch as batches
 
+    profiles = not args.review and args.format == "html"  # only the HTML report plots the field
     done = batches.check_files(expansion.files, lambda reader: Checker(
-        units, Options(limits=limits, tolerance=config.tolerance, tolerances=config.tolerances), read=reader),
+        units, Options(limits=limits, tolerance=config.tolerance, tolerances=config.tolerances,
+                       profiles=profiles), read=reader),
         limits.max_bytes, stdin, args.jobs)
     for message in done.messages:
         stderr.write(message)

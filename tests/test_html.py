@@ -161,9 +161,9 @@ def test_the_plots_are_inline_svg_with_unique_ids(tmp_path):
     _, text = report(tmp_path, PUMP_PROBE, HHG)
     page = Page(text)
     figures = page.all("figure", class_="plot")
-    assert len(figures) == 6  # per file: the pulse, its spectrum, the foci
+    assert len(figures) == 8  # per file: the pulse, its spectrum, the foci, the field at the branch ends
     svgs = page.all("svg")
-    assert len(svgs) == 6 and all(s.get("role") == "img" for s in svgs)
+    assert len(svgs) == 8 and all(s.get("role") == "img" for s in svgs)
     ids = [a["id"] for _, a in page.tags if "id" in a]
     assert len(ids) == len(set(ids))
     # the pulse at the laser and at the last column of each branch, with the sheet's durations
@@ -424,3 +424,44 @@ def test_the_report_in_a_real_browser(browser, tmp_path, checker, request):
     artifacts.mkdir(exist_ok=True)
     shot = artifacts / "html-report.png"
     assert browser.save_screenshot(str(shot)) and shot.stat().st_size > 10_000
+
+
+# ------------------------------------------------------------ the field
+FIELD_SPEC = """spec_version: 1
+laser: {wavelength: 800 nm, pulse_duration: 30 fs, spectral_bandwidth: 31.4 nm, pulse_energy: 1 mJ,
+        repetition_rate: 1 kHz, pulse_shape: gaussian}
+path:
+  - {name: stretch, kind: dispersion, gdd: 1000 fs^2}
+"""
+
+
+def test_the_field_at_a_branch_end_is_kept_for_the_report_only(units):
+    from speccheck.checking.document import Checker, Options
+
+    assert Checker(units).check_text(FIELD_SPEC, "x.yaml").fields == ()  # the other formats never pay for it
+    result = Checker(units, Options(profiles=True)).check_text(FIELD_SPEC, "x.yaml")
+    (profile,) = result.fields
+    assert profile.column == "stretch"
+    import numpy as np
+
+    # the spectral phase is the stage's GDD: a parabola φ = GDD Δω²/2, fitted here to the plotted samples
+    # (numpy's polyfit against the parameter the stage was given)
+    omega = 2 * np.pi * 299792458.0 / np.asarray(profile.wavelength)
+    w0 = 2 * np.pi * 299792458.0 / 800e-9
+    curvature = np.polyfit(omega - w0, np.asarray(profile.phase), 2)[0]
+    assert 2 * curvature == pytest.approx(1000e-30, rel=0.01)
+    # the plotted intensity's half-maximum width is the sheet's duration (the closed form for a chirped
+    # Gaussian, τ0 √(1 + (4 ln2 φ/τ0²)²) = 97.3 fs for τ0 = 29.97 fs), to the plot's time step
+    t, inten = np.asarray(profile.time), np.asarray(profile.intensity)
+    hot = t[inten >= 0.5]
+    assert hot[-1] - hot[0] == pytest.approx(result.sheet["stretch"]["pulse_duration"].value, rel=0.03)
+
+
+@needs_matplotlib
+def test_the_report_plots_the_field_at_the_end_of_the_path(tmp_path):
+    spec = tmp_path / "f.yaml"
+    spec.write_text(FIELD_SPEC, encoding="utf-8")
+    _, text = report(tmp_path, spec)
+    page = Page(text)
+    assert "The pulse's field at the end of each branch, computed along the path" in page.plain
+    assert len(page.all("svg")) == 3  # the idealised pulse and spectrum, and the field

@@ -30,6 +30,7 @@ class Options:
     limits: Limits = Limits()
     tolerance: float | None = None  # the project configuration's global tolerance
     tolerances: Mapping[str, float] = field(default_factory=dict)  # …and its per-quantity ones
+    profiles: bool = False  # keep the field's profiles at the branch ends (the HTML report plots them)
 
 
 class Checker:
@@ -57,7 +58,7 @@ class Checker:
             for rule_id, at, message, at_key in validate(data):
                 report.add(rule_id, message, at, key=at_key)
         title = None
-        shape, shape_stated, ends = None, False, ()
+        shape, shape_stated, ends, fields = None, False, (), ()
         if isinstance(data, dict):
             title = data.get("title") if isinstance(data.get("title"), str) else None
             tolerance = self._tolerance(data, report)
@@ -72,12 +73,12 @@ class Checker:
                 if isinstance(data.get("path"), list) or isinstance(data.get("target"), dict):
                     from speccheck.checking.walker import check_path
 
-                    ends = tuple(check_path(self, data, tolerance, report, sheet))
+                    ends, fields = check_path(self, data, tolerance, report, sheet)
             if sheet:
                 self._safety(data, sheet, report)
         findings = tuple(sorted(report.findings, key=Finding.sort_key))
         points = tuple(name for name in sheet if name in report.points)
-        return FileResult(path, findings, sheet, title, shape, shape_stated, ends, points)
+        return FileResult(path, findings, sheet, title, shape, shape_stated, tuple(ends), points, tuple(fields))
 
     def _safety(self, data: dict, sheet: dict, report: Report) -> None:
         from speccheck.checking import safety

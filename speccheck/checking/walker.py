@@ -30,7 +30,7 @@ from speccheck.physics.stages import PARAM_TOLERANCES, STAGE_KINDS
 from speccheck.reading.angles import parse_angle
 from speccheck.reading.units import choose_unit, format_quantity
 from speccheck.reading.values import Stated, ValueProblem
-from speccheck.records.findings import Cell
+from speccheck.records.findings import Cell, FieldProfile
 
 _FIXED_KEYS = {"name", "kind", "measured"}  # keys every stage may have
 _STAGE_KEYS = _FIXED_KEYS | {"branches"} | {p.name for k in STAGE_KINDS.values() for p in k.params} | {
@@ -54,6 +54,7 @@ class PathWalk:
         self.context = None
         self.ends: list[str] = []  # the last column of each branch, in the order walked
         self.named: set[str] = set()  # the stages' names so far, computed or not
+        self.profiles: list[FieldProfile] = []  # the field at each branch end, for the report's plots
         defaults = data.get("defaults") if isinstance(data.get("defaults"), dict) else {}
         self.b_limit = self.setting(defaults, "b_integral_limit", hazards.B_INTEGRAL_LIMIT)
         self.safety_factor = self.setting(defaults, "damage_safety_factor", hazards.DAMAGE_SAFETY_FACTOR)
@@ -290,6 +291,11 @@ class PathWalk:
                 return
         if lost:
             return self.broken(lost, target, target_at)
+        if beam.pulse is not None and getattr(self.c.options, "profiles", False) and columns[-1] != "laser":
+            try:
+                self.profiles.append(FieldProfile(columns[-1], *beam.pulse.profile()))
+            except NUMERIC_FAILURES:
+                pass  # a plot the field cannot give: the report goes without it
         targets.finish(self, columns, beam, target, target_at, end_at)
 
     def broken(self, name: str, target, target_at: tuple) -> None:
@@ -386,9 +392,10 @@ def _failure(exc: Exception) -> str:
     return "a number outside a formula's domain"
 
 
-def check_path(checker, data: dict, tolerance: float, report, sheet: dict) -> list[str]:
-    """Check the beam path into ``sheet``; return the column that ends each branch."""
+def check_path(checker, data: dict, tolerance: float, report, sheet: dict) -> tuple[list[str], list]:
+    """Check the beam path into ``sheet``; return the column that ends each branch, and the field's
+    profiles there (where the checker's options ask for them and the path built the field)."""
     walk = PathWalk(checker, data, tolerance, report, sheet)
     walk.run()
-    return walk.ends
+    return walk.ends, walk.profiles
 

@@ -177,6 +177,13 @@ def _figures(result: FileResult, ctx: _Context, units, show: _Show) -> list[tupl
                        f"{c} {show(lam, show.prefixed(lam, 'nm'))}, Δν {show(dnu, show.prefixed(dnu, 'THz'))}"
                        for c, lam, dnu in spectra) + ".")
         figures.append(("Spectrum", caption, lambda p, spectra=spectra: p.spectra(units, ctx.shape, spectra)))
+    if result.fields:
+        shown = result.fields[:MAX_CURVES]
+        caption = ("The pulse's field at the end of each branch, computed along the path (not an idealised "
+                   "shape): the temporal intensity by FFT of the field, and the spectrum with its spectral "
+                   "phase (dashed; its constant and group delay removed): " + ", ".join(p.column for p in shown)
+                   + ".")
+        figures.append(("The pulse's field", caption, lambda p, shown=shown: p.field(units, shown)))
     foci = []
     for c, cells in sheet.items():
         w0, zr = _positive(cells, "beam_radius"), _positive(cells, "rayleigh_range")

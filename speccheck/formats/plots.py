@@ -166,6 +166,33 @@ def spectra(units, shape: str, curves: list[tuple[str, float, float]]) -> str:
         return _svg(fig)
 
 
+def field(units, profiles) -> str:
+    """The pulse's field at each branch end (``records.findings.FieldProfile``): its temporal
+    intensity, and its spectrum with the spectral phase on a second axis."""
+    with matplotlib.rc_context(_RC):
+        fig, (ax_t, ax_s) = _figure(6.4, 3.0, 2)
+        widest = max(max(abs(p.time[0]), abs(p.time[-1])) for p in profiles)
+        tu, tf = _unit(units, widest, "fs")
+        lu, lf = _unit(units, profiles[0].wavelength[len(profiles[0].wavelength) // 2], "nm")
+        ax_p = ax_s.twinx()
+        for i, p in enumerate(profiles):
+            colour = _COLOURS[i % len(_COLOURS)]
+            ax_t.plot(np.asarray(p.time) / tf, p.intensity, color=colour, linewidth=1.4, label=label(p.column))
+            lam = np.asarray(p.wavelength) / lf
+            ax_s.plot(lam, p.spectrum, color=colour, linewidth=1.4, label=label(p.column))
+            ax_p.plot(lam, p.phase, color=colour, linewidth=1.0, linestyle="--")
+        ax_t.set_xlabel(f"time from the peak ({pretty_unit(tu)})")
+        ax_t.set_ylabel("intensity (normalised)")
+        ax_t.set_ylim(0, 1.08)
+        ax_t.legend(loc="upper right", fontsize=7.5)
+        ax_s.set_xlabel(f"wavelength ({pretty_unit(lu)})")
+        ax_s.set_ylabel("spectral intensity (normalised)")
+        ax_s.set_ylim(0, 1.08)
+        ax_p.set_ylabel("spectral phase (rad, dashed)")
+        fig.suptitle("The pulse's field at the end of each branch", fontsize=9.5)
+        return _svg(fig)
+
+
 def caustic(units, foci: list[tuple[str, float, float]]) -> str:
     """The 1/e² beam radius w(z) = w0 √(1 + (z/z_R)²) over ±3 z_R around each (column, w0 in m,
     z_R in m), one panel per focus."""

@@ -14,7 +14,11 @@ def time_profile(env: Envelope, terms, omega0: float, scale: float = 1.0, points
     half, window, n = sample(env, terms, omega0, scale)
     n = min(n, MAX_POINTS)
     _, spec, _ = _spectrum(env, terms, omega0, scale, (0.0, 0.0), window, n)
-    inten = np.abs(np.fft.fftshift(np.fft.fft(spec))) ** 2
+    pad = 8  # zero-padded: the time step an eighth of the grid's, a smooth curve over the pulse
+    padded = np.zeros(pad * n, dtype=complex)
+    padded[: n // 2], padded[-(n // 2):] = spec[: n // 2], spec[n // 2:]
+    n *= pad
+    inten = np.abs(np.fft.fftshift(np.fft.fft(padded))) ** 2
     t = (np.arange(n) - n // 2) * (window / n)
     hot = np.flatnonzero(inten > 1e-3 * inten.max())
     lo, hi = max(hot[0] - 2, 0), min(hot[-1] + 3, n)

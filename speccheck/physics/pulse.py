@@ -157,6 +157,32 @@ class Pulse:
                        (min(factors), typ.peak_factor * mid, max(factors)), (min(mains), typ.main_peak * mid, max(mains)),
                        (net_gdd, net_tod, (fod, fod, fod)), typ.phase_rms)
 
+    def profile(self, points: int = 300) -> tuple[tuple, ...]:
+        """The typical field for plots: (time from the peak in s, I(t)/max, wavelength in m ascending,
+        spectral intensity/max, spectral phase in rad with its constant and group delay removed)."""
+        import numpy as np
+
+        t, inten = H.time_profile(self.envelope, self.terms, self.omega0, 1.0, points)
+        t = t - t[int(np.argmax(inten))]
+        half = self.envelope.half_span()
+        dw = np.linspace(-half, half, 4001)
+        amp = self.envelope.at(dw)
+        power = np.abs(amp) ** 2
+        keep = (power > 1e-3 * power.max()) & (np.abs(dw) < 0.95 * self.omega0)
+        dw, amp, power = dw[keep], amp[keep], power[keep]
+        with np.errstate(invalid="ignore"):
+            phi = T.total_phase(self.terms, self.omega0, dw) + np.unwrap(np.angle(amp))
+        good = np.isfinite(phi)
+        dw, power, phi = dw[good], power[good], phi[good]
+        slope, offset = np.polyfit(dw, phi, 1, w=np.sqrt(power))  # the group delay and constant: no shape
+        phi = phi - slope * dw - offset
+        stride = max(1, len(dw) // points)
+        lam = 2.0 * math.pi * 299792458.0 / (self.omega0 + dw[::stride])  # c, exact by the SI's definition
+        order = np.argsort(lam)
+        return (tuple(float(x) for x in t), tuple(float(x) for x in inten), tuple(float(x) for x in lam[order]),
+                tuple(float(x) for x in (power[::stride] / power.max())[order]),
+                tuple(float(x) for x in phi[::stride][order]))
+
     def _tod_matters(self, w: Window) -> bool:
         x = 4.0 / self.envelope.tl
         return abs(w.tod[1] - w.tod[0]) * x**3 / 6.0 >= _NEGLIGIBLE

@@ -50,6 +50,19 @@ class Cell(NamedTuple):
 
 
 @dataclass(frozen=True)
+class FieldProfile:
+    """The pulse's field at a column, for the report's plots: its temporal intensity and its
+    spectrum with the spectral phase, as plain numbers (normalised to a peak of 1)."""
+
+    column: str
+    time: tuple[float, ...]  # s, from the peak
+    intensity: tuple[float, ...]
+    wavelength: tuple[float, ...]  # m, ascending
+    spectrum: tuple[float, ...]  # spectral intensity per unit frequency
+    phase: tuple[float, ...]  # rad, its constant and group delay removed
+
+
+@dataclass(frozen=True)
 class FileResult:
     path: str
     findings: tuple[Finding, ...]
@@ -59,6 +72,7 @@ class FileResult:
     pulse_shape_stated: bool = False  # False: not stated, the default was assumed
     branch_ends: tuple[str, ...] = ()  # the column that ends each branch of the beam path
     operating_points: tuple[str, ...] = ()  # the columns that are operating points of a maker's sheet
+    fields: tuple[FieldProfile, ...] = ()  # the pulse's field at each branch end, where the path built it
 
     def count(self, severity: str) -> int:
         return sum(1 for f in self.findings if f.severity == severity)

@@ -11,11 +11,12 @@ from dataclasses import replace
 from speccheck.checking.stage_checks import interval
 from speccheck.physics.shapes import DEFAULT_SHAPE
 from speccheck.physics.beam import CARRIED, Beam, LaserPulse, typical
+from speccheck.reading.units import UnitError
 from speccheck.reading.values import ValueProblem
 
 
 def beam_from(cells: dict, old: Beam | None, shape_limit: float | None = None, shape: str = DEFAULT_SHAPE,
-              chirp: dict | None = None) -> Beam:
+              chirp: dict | None = None, spectrum: tuple = ()) -> Beam:
     """The beam a column passes on: its carried values, and (from the laser's column) what its
     pulse's field is built from."""
     values = {q: interval(cells[q]) for q in CARRIED if q in cells}
@@ -35,7 +36,26 @@ def beam_from(cells: dict, old: Beam | None, shape_limit: float | None = None, s
     share = interval(cells["energy_in_main_peak"]) if "energy_in_main_peak" in cells else (1.0, 1.0, 1.0)
     share = (share[0], typical(share) or 1.0, share[2] if math.isfinite(share[2]) else 1.0)
     return Beam(values, LaserPulse(shape, tl, values.get("pulse_duration"), chirp.get("chirp"), chirp.get("gdd"),
-                                   chirp.get("tod"), share, source))
+                                   chirp.get("tod"), share, source, spectrum if source == "measured" else ()))
+
+
+def measured_spectrum(walk) -> tuple:
+    """The laser's measured spectrum as the field's amplitude, (ω, √S(ω)): the analysis the laser's
+    column made of it (the checker keeps it), or () where there is none or it could not be used (the
+    column has said why)."""
+    laser = walk.data.get("laser") if isinstance(walk.data.get("laser"), dict) else {}
+    raw = laser.get("spectrum")
+    if not isinstance(raw, dict) or not isinstance(raw.get("file"), str) or walk.c.read is None:
+        return ()
+    from speccheck.physics.trace_cleaning import DataProblem
+
+    try:
+        unit = walk.c.units.parse(str(raw.get("wavelength_unit", "nm")))
+        result = walk.c.data_files.analysis(walk.c.read, raw["file"], walk.report.path, "spectrum", unit.factor,
+                                            walk.c.units.constants.c)
+    except (DataProblem, UnitError, ValueError):  # reported where the laser's column read it
+        return ()
+    return (result.field_omega, result.field_amplitude) if result.field_omega else ()
 
 
 def laser_chirp(walk) -> dict:

@@ -18,7 +18,7 @@ from dataclasses import replace
 
 from speccheck.checking import targets, wording
 from speccheck.checking.column import BlockCheck
-from speccheck.checking.laser_pulse import beam_from, chirp_duration, laser_chirp
+from speccheck.checking.laser_pulse import beam_from, chirp_duration, laser_chirp, measured_spectrum
 from speccheck.checking.stage_checks import CHECKS, Visit, checks_of
 from speccheck.physics import hazards, materials
 from speccheck.physics.quantities import BY_NAME
@@ -221,7 +221,7 @@ class PathWalk:
         # a shape without a transform limit (a Lorentzian) has its field taken as a Gaussian's: so is its τ0
         limit = ctx.transform_limit or PULSE_SHAPES["gaussian"].transform_limit
         beam = beam_from(laser_cells, None, limit, shape if shape in PULSE_SHAPES else DEFAULT_SHAPE,
-                         laser_chirp(self))
+                         laser_chirp(self), measured_spectrum(self))
         try:
             beam = chirp_duration(self, beam, ctx)
         except NUMERIC_FAILURES as exc:  # a chirp its field cannot hold: said, and the path goes on without it

@@ -49,6 +49,8 @@ class LaserPulse:
     tod: Value | None = None  # s³
     share: Value = (1.0, 1.0, 1.0)  # of the energy in the main peak
     tl_from: str = "bandwidth"  # or "measured", or "duration" (nothing else known: transform limited)
+    # a measured spectrum's amplitude: (ω in rad/s, √S(ω)), the field's amplitude instead of the shape's
+    spectrum: tuple = ()
 
 
 @dataclass(frozen=True)
@@ -84,7 +86,7 @@ class Beam:
         tl = (tl[0] or tl[1], typical(tl), tl[2] if math.isfinite(tl[2]) else typical(tl))
         made, notes = pulse.at_laser(self.laser.shape, tl, self.laser.duration, 2.0 * math.pi * ctx.c / typical(lam),
                                      self.laser.chirp, self.laser.gdd, self.laser.tod, self.laser.share,
-                                     self.laser.tl_from)
+                                     self.laser.tl_from, self.laser.spectrum)
         for text in notes:
             ctx.note(text)
         return made

@@ -220,15 +220,18 @@ class Pulse:
 
 def at_laser(shape: str, tl: Value, duration: Value | None, omega0: float, chirp: str | None,
              gdd: Value | None, tod: Value | None, share: Value = (1.0, 1.0, 1.0),
-             tl_from: str = "bandwidth") -> tuple[Pulse, list[str]]:
+             tl_from: str = "bandwidth", spectrum: tuple = ()) -> tuple[Pulse, list[str]]:
     """The laser's pulse: its shape at τ0, with the chirp that gives its stated duration.
 
     ``chirp`` is "positive", "negative" or None; ``gdd`` and ``tod`` (signed intervals) are the
     chirp the laser's pulse carries, where the spec states it; ``share`` the energy in its main
     peak; ``tl_from`` where τ0 came from ("bandwidth", "measured" or "duration": none known, the
-    pulse is then transform limited).  Returns the pulse and the model notes to say at the first
-    stage that uses the field."""
+    pulse is then transform limited); ``spectrum`` a measured spectrum's (ω, √S(ω)), whose amplitude
+    the field then takes instead of the shape's.  Returns the pulse and the model notes to say at the
+    first stage that uses the field."""
     notes = []
+    if spectrum:
+        return _measured(spectrum, tl, duration, omega0, chirp, gdd, tod, share)
     if shape not in ("gaussian", "sech2", "flat_top"):
         text = f"the {shape} shape has no transform limit, so its field is taken as a Gaussian's"
         if tl_from == "bandwidth" and duration is not None and duration[1] is not None and duration[1] < tl[1] * 0.999:
@@ -273,3 +276,62 @@ def at_laser(shape: str, tl: Value, duration: Value | None, omega0: float, chirp
                  "stage covers both signs (the typical value takes positive chirp, common practice); state "
                  "laser.chirp: positive or negative")
     return Pulse(env, omega0, tl, terms, (window, other), sign_unknown=True, **made), notes
+
+
+def _measured(spectrum: tuple, tl: Value, duration: Value | None, omega0: float, chirp: str | None,
+              gdd: Value | None, tod: Value | None, share: Value) -> tuple[Pulse, list[str]]:
+    """The laser's pulse from its measured spectrum: the amplitude √S(ω) with a flat phase, then the
+    chirp (a stated GDD, or the GDD that gives the stated duration, found on the field itself)."""
+    import numpy as np
+
+    omega, amp = (np.asarray(x, dtype=float) for x in spectrum)
+    env = H.sampled(omega - omega0, amp.astype(complex), omega0)
+    # τ0's interval relative to the measured one (the analysis's, from its noise)
+    tl = (env.tl * tl[0] / tl[1], env.tl, env.tl * tl[2] / tl[1]) if tl[1] else (env.tl,) * 3
+    notes = ["the field's amplitude is the measured spectrum's, √S(ω), with the chirp that gives the stated "
+             "duration"]
+    made = dict(share=share)
+    if gdd is not None:
+        terms = [T.Poly(2, gdd[1])] + ([T.Poly(3, tod[1])] if tod is not None else [])
+        window = Window((gdd[0] - gdd[1], gdd[2] - gdd[1]),
+                        (tod[0] - tod[1], tod[2] - tod[1]) if tod is not None else (0.0, 0.0))
+        return Pulse(env, omega0, tl, tuple(terms), (window,), **made), notes
+    if duration is None or duration[1] is None or not all(math.isfinite(d) for d in (duration[0], duration[2])):
+        return Pulse(env, omega0, tl, **made), notes
+    corners = [_gdd_for(env, omega0, s, d) for s in (tl[0] / tl[1], tl[2] / tl[1]) for d in (duration[0], duration[2])
+               if d > 0]
+    typ = _gdd_for(env, omega0, 1.0, duration[1]) if duration[1] > env.tl * 1.001 else 0.0
+    lo, hi = min(corners + [typ]), max(corners + [typ])
+    if hi <= 0.0:
+        return Pulse(env, omega0, tl, **made), notes
+    sign = -1.0 if chirp == "negative" else 1.0
+    terms = (T.Poly(2, sign * typ),)
+    window = Window((lo - typ, hi - typ) if sign > 0 else (-hi + typ, -lo + typ))
+    if chirp in ("positive", "negative"):
+        return Pulse(env, omega0, tl, terms, (window,), **made), notes
+    notes.append("the sign of the laser's chirp is not stated, so every duration after a dispersive stage covers "
+                 "both signs (the typical value takes positive chirp, common practice)")
+    return Pulse(env, omega0, tl, terms, (window, Window((-hi - typ, -lo - typ))), sign_unknown=True, **made), notes
+
+
+def _gdd_for(env: F.Envelope, omega0: float, scale: float, duration: float) -> float:
+    """|GDD| that stretches the flat-phase pulse of a sampled spectrum (widened by 1/scale) to
+    ``duration``: bisection in log GDD on the field's duration (it grows with |GDD| for a spectrum
+    with a single main peak), 0 when the pulse is already that long."""
+    tl = F.measure(env, (), omega0, scale).duration
+    if duration <= tl * 1.001:
+        return 0.0
+    lo, hi = 0.0, tl * tl  # grow the bracket until it holds the duration
+    while F.measure(env, (T.Poly(2, hi),), omega0, scale).duration < duration:
+        lo, hi = hi, hi * 4.0
+        if hi > 1e6 * tl * tl:
+            break
+    for _ in range(40):
+        mid = 0.5 * (lo + hi) if lo == 0.0 else math.sqrt(lo * hi)
+        if F.measure(env, (T.Poly(2, mid),), omega0, scale).duration < duration:
+            lo = mid
+        else:
+            hi = mid
+        if hi - lo <= 1e-4 * hi:
+            break
+    return 0.5 * (lo + hi)

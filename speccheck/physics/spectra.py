@@ -64,6 +64,10 @@ class SpectrumAnalysis:
     transform_limited_low: float  # s
     transform_limited_high: float  # s
     warnings: tuple[str, ...]
+    # the spectral amplitude √S(ω) on an even grid of angular frequencies (rad/s, ascending), zero where
+    # the spectrum is below the noise: the field's amplitude on a beam path
+    field_omega: tuple[float, ...] = ()
+    field_amplitude: tuple[float, ...] = ()
 
 
 def analyse_spectrum(wavelength_m, counts, c: float) -> SpectrumAnalysis:
@@ -153,8 +157,21 @@ def analyse_spectrum(wavelength_m, counts, c: float) -> SpectrumAnalysis:
     if high - low > 0.2 * duration:
         warnings.append(f"the noise makes the transform limit uncertain: between {low * 1e15:.3g} fs and "
                         f"{high * 1e15:.3g} fs depending on where the spectrum is cut from the noise.")
+    omega, amplitude = _field_amplitude(nu, s_nu, keep(CENTRAL_THRESHOLD))
     return SpectrumAnalysis(float(fwhm_lam), float(fwhm_nu), float(centre), float(duration), float(low),
-                            float(high), tuple(warnings))
+                            float(high), tuple(warnings), omega, amplitude)
+
+
+def _field_amplitude(nu: np.ndarray, s_nu: np.ndarray, kept: np.ndarray, points: int = 1024):
+    """√S on an even grid of ω = 2πν over the samples kept above the noise (and a tenth of their span
+    either side, where it is zero), at most ``points`` samples: what the field is built from."""
+    inside = nu[kept]
+    span = float(inside[-1] - inside[0])
+    grid = np.linspace(inside[0] - 0.1 * span, inside[-1] + 0.1 * span, points)
+    s = np.interp(grid, nu, np.where(kept, np.clip(s_nu, 0.0, None), 0.0), left=0.0, right=0.0)
+    s = np.where((grid >= inside[0]) & (grid <= inside[-1]), s, 0.0)
+    amp = np.sqrt(s / s.max())
+    return tuple(float(x) for x in 2.0 * math.pi * grid), tuple(float(x) for x in amp)
 
 
 def _spectrum_warnings(lam: np.ndarray, s_raw: np.ndarray, cl: Cleaned, warnings: list[str]) -> None:

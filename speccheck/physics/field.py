@@ -214,27 +214,41 @@ def measure_set(env: Envelope, terms, omega0: float, points) -> list[Measures]:
     inside = np.abs(dw) < 0.95 * omega0
     with np.errstate(invalid="ignore"):
         base_phase = total_phase(terms, omega0, np.where(inside, dw, 0.0))
-    out = []
+    finite = bool(np.all(np.isfinite(base_phase)))
+    quad, cubic = dw * dw / 2.0, dw * dw * dw / 6.0
     m = _PAD * n
     dt = window / m
     times = (np.arange(m) - m // 2) * dt
-    for scale, gdd, tod in points:
-        amp = env.at(dw, scale)
-        mag = np.abs(amp)
-        live = (mag > _FLOOR * mag.max()) & inside
-        phi = base_phase + (gdd * dw**2 / 2.0 if gdd else 0.0) + (tod * dw**3 / 6.0 if tod else 0.0)
-        undefined = live & ~np.isfinite(phi)
-        if np.any(undefined & (mag > 1e-3 * mag.max())):
-            raise OutOfModelRange("a phase is not defined across the pulse's spectrum (beyond the range of its "
-                             "formula)")
-        live &= ~undefined
+    # every corner on one grid, one FFT for all of them (a row each)
+    padded = np.zeros((len(points), m), dtype=complex)
+    amplitudes: dict = {}
+    typical = None
+    for row, (scale, gdd, tod) in enumerate(points):
+        if scale not in amplitudes:
+            amp = env.at(dw, scale)
+            mag = np.abs(amp)
+            amplitudes[scale] = (amp, mag, (mag > _FLOOR * mag.max()) & inside)
+        amp, mag, live = amplitudes[scale]
+        phi = base_phase
+        if gdd:
+            phi = phi + gdd * quad
+        if tod:
+            phi = phi + tod * cubic
+        if not finite:
+            undefined = live & ~np.isfinite(phi)
+            if np.any(undefined & (mag > 1e-3 * mag.max())):
+                raise OutOfModelRange("a phase is not defined across the pulse's spectrum (beyond the range of "
+                                      "its formula)")
+            live = live & ~undefined
         phi = np.where(live, phi, 0.0)
         spec = np.where(live, amp, 0.0) * np.exp(1j * phi)
-        padded = np.zeros(m, dtype=complex)
-        padded[: n // 2], padded[-(n // 2):] = spec[: n // 2], spec[n // 2:]
-        intensity = np.abs(np.fft.fftshift(np.fft.fft(padded))) ** 2
-        out.append(_measures(times, intensity, dt, spec, dw, phi))
-    return out
+        padded[row, : n // 2], padded[row, -(n // 2):] = spec[: n // 2], spec[n // 2:]
+        if row == 0:
+            typical = (spec, phi)
+    intensity = np.fft.fftshift(np.abs(np.fft.fft(padded, axis=1)) ** 2, axes=1)
+    # the residual phase only at the first point (the typical one): the only one a column shows
+    return [_measures(times, intensity[row], dt, *(typical if row == 0 else (None, None)), dw)
+            for row in range(len(points))]
 
 
 def _spectrum(env, terms, omega0, scale, extra, window, n):
@@ -276,6 +290,8 @@ def _measures(t, intensity, dt, spec, dw, phi) -> Measures:
     left = int(falls[falls <= k].max()) if np.any(falls <= k) else 0
     right = int(rises[rises >= k].min()) if np.any(rises >= k) else len(t) - 1
     main = float(np.sum(intensity[left:right + 1])) * dt / energy
+    if spec is None:
+        return Measures(float(duration), float(a), min(main, 1.0), float("nan"), "fft")
     w = np.abs(spec) ** 2
     mean = float(np.sum(w * phi) / np.sum(w))
     slope = float(np.sum(w * (phi - mean) * dw) / max(np.sum(w * dw * dw), 1e-300))
@@ -297,10 +313,11 @@ def _crossing(t: np.ndarray, intensity: np.ndarray, j: int, level: float) -> flo
     """Where the intensity crosses ``level`` between samples j and j + 1: inverse cubic
     (Lagrange) interpolation through the four samples about the crossing."""
     j = min(max(j, 1), len(t) - 3)
-    ys, xs = intensity[j - 1: j + 3], t[j - 1: j + 3]
-    if not (np.all(np.diff(ys) > 0) or np.all(np.diff(ys) < 0)):  # not monotonic: linear
-        y0, y1 = intensity[j], intensity[j + 1]
-        return float(t[j] + (level - y0) / (y1 - y0) * (t[j + 1] - t[j])) if y1 != y0 else float(t[j])
+    ys, xs = intensity[j - 1: j + 3].tolist(), t[j - 1: j + 3].tolist()
+    rising = ys[0] < ys[1] < ys[2] < ys[3]
+    if not (rising or ys[0] > ys[1] > ys[2] > ys[3]):  # not monotonic: linear
+        y0, y1 = ys[1], ys[2]
+        return float(xs[1] + (level - y0) / (y1 - y0) * (xs[2] - xs[1])) if y1 != y0 else float(xs[1])
     out = 0.0
     for i in range(4):
         term = xs[i]

@@ -507,3 +507,11 @@ def test_a_lorentzian_laser_with_a_bandwidth_is_taken_as_a_gaussian_of_that_band
     r = check(_CHIRPED.format(extra="  pulse_duration: 20 fs\n  pulse_shape: lorentzian"))
     note = " ".join(f.message for f in r.findings if f.rule == "stage-model")
     assert "no transform limit" in note and "31.4 fs" in note and "no bandwidth" not in note
+
+
+def test_the_net_fod_carries_the_tolerance_of_the_stages_fod(check):
+    # 1000 fs⁴ ± 20 % (the default tolerance of a FOD): the net FOD is 800 … 1200 fs⁴
+    r = check(_CHIRPED.format(extra="").replace("{name: m, kind: dispersion, gdd: 0 fs^2}",
+                                                "{name: m, kind: dispersion, fod: 1000 fs^4}"))
+    fod = cell(r, "net_fod", "m")
+    assert (fod.low, fod.value, fod.high) == pytest.approx((800e-60, 1000e-60, 1200e-60), rel=1e-6)

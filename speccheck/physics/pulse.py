@@ -78,12 +78,15 @@ class Pulse:
     # the share of the energy in the main peak at the laser (a pedestal, ``energy_in_main_peak``): the
     # field is the main peak's, the pedestal is taken as too long to add to the peak
     share: Value = (1.0, 1.0, 1.0)
+    # the spread of the net FOD the stages' tolerances allow (shown; the corners do not vary FOD)
+    fod_spread: tuple[float, float] = (0.0, 0.0)
 
-    def adding(self, terms: tuple, gdd=(0.0, 0.0), tod=(0.0, 0.0)) -> "Pulse":
+    def adding(self, terms: tuple, gdd=(0.0, 0.0), tod=(0.0, 0.0), fod=(0.0, 0.0)) -> "Pulse":
         """The pulse after phase-only terms (typical) with their tolerances as GDD and TOD ranges
-        around the typical (``gdd`` = (low − typical, high − typical))."""
+        around the typical (``gdd`` = (low − typical, high − typical)), and its FOD's spread."""
         return replace(self, terms=self.terms + tuple(terms), shaped=True,
-                       windows=tuple(w.shifted(gdd, tod) for w in self.windows))
+                       windows=tuple(w.shifted(gdd, tod) for w in self.windows),
+                       fod_spread=(self.fod_spread[0] + fod[0], self.fod_spread[1] + fod[1]))
 
     def harmonic(self, order: int) -> "Pulse":
         """E(t)^order of the typical field (thin crystal, undepleted): the windows' GDD and TOD
@@ -93,7 +96,7 @@ class Pulse:
         tl = tuple(x * ratio for x in self.tl)
         return Pulse(env, self.omega0 * order, tl, (), tuple(w.scaled(1.0 / order, 1.0 / order**2)
                                                             for w in self.windows), True, self.sign_unknown,
-                     self.share)
+                     self.share, tuple(x / order**3 for x in self.fod_spread))
 
     # ------------------------------------------------------------- numbers
     @cached_property
@@ -155,7 +158,7 @@ class Pulse:
         net_tod = (tod + min(w.tod[0] for w in self.windows), tod, tod + max(w.tod[1] for w in self.windows))
         return Numbers((min(durations), typ.duration, max(durations)),
                        (min(factors), typ.peak_factor * mid, max(factors)), (min(mains), typ.main_peak * mid, max(mains)),
-                       (net_gdd, net_tod, (fod, fod, fod)), typ.phase_rms)
+                       (net_gdd, net_tod, (fod + self.fod_spread[0], fod, fod + self.fod_spread[1])), typ.phase_rms)
 
     def profile(self, points: int = 300) -> tuple[tuple, ...]:
         """The typical field for plots: (time from the peak in s, I(t)/max, wavelength in m ascending,

@@ -10,9 +10,10 @@ from typing import Callable
 from speccheck.physics.beam import Beam, Value, point, scaled, transmit, typical
 
 
-def add_phase(beam: Beam, ctx, terms: Callable, gdd: Value, tod: Value | None = None) -> Beam:
+def add_phase(beam: Beam, ctx, terms: Callable, gdd: Value, tod: Value | None = None,
+              fod: Value | None = None) -> Beam:
     """The beam after a phase-only stage: ``terms(typical values)`` gives its phase terms;
-    the tolerances of its GDD and TOD widen the pulse's windows."""
+    the tolerances of its GDD and TOD widen the pulse's windows (its FOD's only the net FOD shown)."""
     made = beam.field(ctx)
     beam = replace(beam, stage_gdd=gdd)
     if made is None:
@@ -20,7 +21,8 @@ def add_phase(beam: Beam, ctx, terms: Callable, gdd: Value, tod: Value | None = 
                  "bandwidth, and a wavelength")
         return beam.with_values(pulse_duration=None)
     spread_tod = (tod[0] - tod[1], tod[2] - tod[1]) if tod is not None else (0.0, 0.0)
-    made = made.adding(terms(), (gdd[0] - gdd[1], gdd[2] - gdd[1]), spread_tod)
+    made = made.adding(terms(), (gdd[0] - gdd[1], gdd[2] - gdd[1]), spread_tod,
+                       (fod[0] - fod[1], fod[2] - fod[1]) if fod is not None else (0.0, 0.0))
     return beam.with_pulse(made, ctx)
 
 
@@ -35,7 +37,7 @@ _NONE = (0.0, 0.0, 0.0)
 
 def dispersion(beam, p, ctx):
     gdd = p.get("gdd") or _NONE  # a stage may add only TOD or FOD (a chirped mirror's residual)
-    return add_phase(beam, ctx, _poly_terms(gdd, p.get("tod"), p.get("fod")), gdd, p.get("tod"))
+    return add_phase(beam, ctx, _poly_terms(gdd, p.get("tod"), p.get("fod")), gdd, p.get("tod"), p.get("fod"))
 
 
 def material(beam, p, ctx):
@@ -61,7 +63,7 @@ def compressor(beam, p, ctx):
     if p.get("gdd") is None and p.get("tod") is None and p.get("fod") is None:
         return beam
     gdd = p.get("gdd") or _NONE
-    return add_phase(beam, ctx, _poly_terms(gdd, p.get("tod"), p.get("fod")), gdd, p.get("tod"))
+    return add_phase(beam, ctx, _poly_terms(gdd, p.get("tod"), p.get("fod")), gdd, p.get("tod"), p.get("fod"))
 
 
 def harmonic(beam, p, ctx):

@@ -4,6 +4,7 @@ gives a duration (``gdd_for_duration``; the Gaussian's closed form for a Gaussia
 
 from __future__ import annotations
 
+import bisect
 import math
 from functools import lru_cache
 
@@ -48,6 +49,21 @@ def _table(shape: str):
     return rows[:, 0], rows[:, 1], rows[:, 2], rows[:, 3]
 
 
+@lru_cache(maxsize=8)
+def _log_rows(shape: str) -> tuple[list, list, list, list]:
+    """The table's rows beyond x = 0 as Python lists (a scalar lookup needs no array): ln x, ln τ/τ0,
+    the peak-power factor and the main peak."""
+    xs, ratios, factors, mains = _table(shape)
+    return ([math.log(x) for x in xs[1:]], [math.log(r) for r in ratios[1:]], [float(f) for f in factors[1:]],
+            [float(m) for m in mains[1:]])
+
+
+def _interp(at: float, xs: list, ys: list) -> float:
+    k = min(max(bisect.bisect_right(xs, at), 1), len(xs) - 1)
+    x0, x1 = xs[k - 1], xs[k]
+    return ys[k - 1] + (ys[k] - ys[k - 1]) * (at - x0) / (x1 - x0)
+
+
 def broadened(shape: str, tl: float, gdd: float) -> tuple[float, float, float]:
     """(duration, P_pk·τ/E, main-peak energy) of a flat-phase pulse of the shape after a pure GDD,
     interpolated in the table (log x; beyond x = 1e3, the stationary-phase asymptote τ ∝ GDD)."""
@@ -58,10 +74,9 @@ def broadened(shape: str, tl: float, gdd: float) -> tuple[float, float, float]:
         return tl * (ratios[0] + k * (ratios[1] - ratios[0])), factors[0] + k * (factors[1] - factors[0]), mains[0]
     if x >= xs[-1]:
         return tl * ratios[-1] * x / xs[-1], float(factors[-1]), float(mains[-1])
-    lx = np.log(xs[1:])
+    lx, lr, fs, ms = _log_rows(shape)
     at = math.log(x)
-    return (tl * float(np.exp(np.interp(at, lx, np.log(ratios[1:])))), float(np.interp(at, lx, factors[1:])),
-            float(np.interp(at, lx, mains[1:])))
+    return tl * math.exp(_interp(at, lx, lr)), _interp(at, lx, fs), _interp(at, lx, ms)
 
 
 def gdd_for_duration(shape: str, tl: float, duration: float) -> float:

@@ -45,7 +45,9 @@ class Exact:
         p0, pp, pm = self.fn(np.array([omega0, omega0 + h, omega0 - h]))
         out = self._values(omega0 + dw) - p0 - (pp - pm) / (2.0 * h) * dw
         if len(self.cache) >= 8:
+            taylor = {k: v for k, v in self.cache.items() if k[0] == "taylor"}
             self.cache.clear()
+            self.cache.update(taylor)
         self.cache[key] = (dw.copy(), out)
         return out
 
@@ -63,11 +65,17 @@ class Exact:
             return out
 
     def taylor(self, omega0: float) -> tuple[float, float, float]:
-        """GDD, TOD and FOD at ω0 by central differences of the exact phase."""
+        """GDD, TOD and FOD at ω0 by central differences of the exact phase (kept: every later column
+        of the path asks again)."""
+        hit = self.cache.get(("taylor", omega0))
+        if hit is not None:
+            return hit
         h = 2e-3 * omega0
         k = np.arange(-3, 4)
         p = self.fn(omega0 + k * h)
-        return _d2(p, h), _d3(p, h), _d4(p, h)
+        out = (float(_d2(p, h)), float(_d3(p, h)), float(_d4(p, h)))
+        self.cache[("taylor", omega0)] = out
+        return out
 
 
 def _d2(p, h):  # sixth-order central differences on seven points

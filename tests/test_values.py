@@ -119,3 +119,20 @@ def test_tolerances_are_read_as_fractions():
 @pytest.mark.parametrize("text", ["74 cm⁻¹", "74 cm^-1", "74 1/cm"])
 def test_superscript_minus_one_is_read(parse, text):
     assert parse("spectral_bandwidth", text).typical == pytest.approx(7400.0)
+
+
+@pytest.mark.parametrize("text, si", [
+    ("1 J/cm2", 1e4),  # J/cm² as people type it: 1 J/cm² = 1e4 J/m² (SI prefixes, by hand)
+    ("2 W/mm2", 2e6),
+    ("1719 cm-1", 1719 * 100.0),  # a wavenumber in cm⁻¹
+])
+def test_an_area_or_wavenumber_without_the_caret_is_read_as_a_power(parse, text, si):
+    key = "peak_fluence" if "J" in text else "peak_intensity" if "W" in text else "spectral_bandwidth"
+    s = parse(key, text)
+    assert s.typical == pytest.approx(si, rel=1e-12)
+
+
+def test_a_bound_written_without_quotes_gets_a_hint(check):
+    r = check("laser:\n  wavelength: 800 nm\n  average_power: >= 20 W\n")
+    (finding,) = [f for f in r.findings if f.rule == "yaml-syntax"]
+    assert "must be quoted" in finding.message and "'>= 20 W'" in finding.message

@@ -223,7 +223,7 @@ def load(text: str | bytes, limits: Limits = Limits()) -> Document:
         mark = exc.problem_mark or exc.context_mark
         line, col = (mark.line + 1, mark.column + 1) if mark else (1, 1)
         what = " ".join(p for p in (exc.context, exc.problem) if p)
-        doc.problems.append(Problem("yaml-syntax", f"YAML syntax error: {what}", line, col))
+        doc.problems.append(Problem("yaml-syntax", f"YAML syntax error: {what}{_hint(text, line)}", line, col))
         return doc
     except yaml.YAMLError as exc:
         doc.problems.append(Problem("yaml-syntax", f"YAML error: {exc}", 1, 1))
@@ -242,3 +242,19 @@ def load(text: str | bytes, limits: Limits = Limits()) -> Document:
         return doc
     doc.data = _Builder(doc, limits).build(root, ())
     return doc
+
+
+_UNQUOTED_BOUND = re.compile(r":\s*([<>]=?|[≤≥])\s*[-+.\d]")
+
+
+def _hint(text: str, line: int) -> str:
+    """A hint for the syntax error people make most: a bound written without quotes (``>= 20 W``, which
+    YAML reads as the start of a folded block)."""
+    lines = text.splitlines()
+    for k in (line - 1, line - 2):  # the error may be reported on the line after
+        if 0 <= k < len(lines):
+            m = _UNQUOTED_BOUND.search(lines[k])
+            if m:
+                return (f" (line {k + 1}: a value that starts with {m.group(1)!r} must be quoted, as in "
+                        f"'{m.group(1)} 20 W')")
+    return ""

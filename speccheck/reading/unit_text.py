@@ -88,8 +88,14 @@ class Constants:
 _LINES_PER = re.compile(r"^(?:lines?|grooves?|gr|l)\s*/\s*(?=(?:[a-zµμ]{0,2}m)$)")
 
 
+# An area or volume typed without the caret, as people do ("J/cm2", "W/mm2", "µm3"), and a wavenumber
+# as "cm-1": a metre with an SI prefix directly followed by 2 or 3 (or -1) is that power of it.
+_BARE_POWER = re.compile(r"(?<![A-Za-zµμ])([kcmuµμnpf]?m)(2|3|-1)(?![0-9])")
+
+
 def normalise_unit_text(text: str) -> str:
     text = _LINES_PER.sub("1/", text.strip())
+    text = _BARE_POWER.sub(lambda m: f"{m.group(1)}^{m.group(2)}", text)
     text = text.translate(_SUPERSCRIPTS)  # "cm⁻¹" -> "cm⁻^1"
     text = _SUPER_MINUS.sub(lambda m: "^-" + m.group(1), text)  # -> "cm^-1"
     return text.replace("**", "^")

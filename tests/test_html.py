@@ -359,7 +359,7 @@ def browser(tmp_path):
         from selenium import webdriver
         from selenium.webdriver.chrome.service import Service
     except ImportError:
-        pytest.skip("selenium is not installed (pip install '.[test]')")
+        pytest.skip("selenium is not installed (pip install '.[browser]')")
     options = webdriver.ChromeOptions()
     options.binary_location = CHROMIUM
     for arg in ("--headless=new", "--no-sandbox", "--disable-gpu", "--disable-background-networking",

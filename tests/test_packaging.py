@@ -1,0 +1,26 @@
+"""Packaging as people expect: a licence, the typing marker installed with the package, one version."""
+
+from importlib import metadata, resources
+from pathlib import Path
+
+import speccheck
+
+ROOT = Path(__file__).resolve().parent.parent
+
+
+def test_the_installed_package_carries_its_typing_marker_and_schema():
+    assert (resources.files("speccheck") / "py.typed").is_file()
+    assert (resources.files("speccheck.schemas") / "spec-v1.schema.json").is_file()
+
+
+def test_the_version_is_written_once_and_installed_as_such():
+    assert metadata.version("speccheck") == speccheck.__version__
+    written = [p for p in ROOT.joinpath("speccheck").rglob("*.py") if speccheck.__version__ in p.read_text("utf-8")]
+    assert [p.name for p in written] == ["_version.py"]
+
+
+def test_the_licence_and_the_source_distribution_list():
+    assert "MIT License" in (ROOT / "LICENSE").read_text("utf-8")
+    manifest = (ROOT / "MANIFEST.in").read_text("utf-8")
+    for folder in ("tests", "example_specs", "benchmarks", "schemas"):
+        assert f"graft {folder}" in manifest

@@ -165,6 +165,31 @@ def test_a_second_harmonic_of_a_chirped_gaussian_halves_its_gdd_and_shortens_it_
     assert shg.numbers.duration[1] == pytest.approx(pulse.numbers.duration[1] / math.sqrt(2), rel=1e-4)
 
 
+@pytest.mark.parametrize("gdd_fs2", [1e4, 3e4, 1e5, 1e6])
+def test_the_harmonic_of_a_stretched_gaussian_halves_its_gdd_at_any_chirp(gdd_fs2):
+    # the same by-hand result as above, for a pump stretched 30× to 3000×: on a grid up to 3e4 fs², by
+    # stationary phase beyond (the grid would need more than 2^16 points)
+    pulse = P.Pulse(F.Envelope(30 * FS, "gaussian"), W800, (30 * FS,) * 3, (T.Poly(2, gdd_fs2 * FS**2),),
+                    shaped=True)
+    shg = pulse.harmonic(2)
+    assert shg.taylor[0] == pytest.approx(gdd_fs2 / 2 * FS**2, rel=1e-6)
+    expected = gaussian_closed_form(30 * FS / math.sqrt(2), gdd_fs2 / 2 * FS**2)
+    assert shg.numbers.duration[1] == pytest.approx(expected, rel=1e-4)
+
+
+def test_the_harmonic_on_a_grid_and_by_stationary_phase_agree_where_both_hold(monkeypatch):
+    # a sech² pump stretched to 100 τ0²: E(t)² by FFT on a grid, then the same with the grid forbidden
+    # (the stationary-phase harmonic A(Δω)² at 2Δω with phase 2φ(Δω)); two methods, one answer
+    from speccheck.physics import harmonics as H
+
+    pump = P.Pulse(F.Envelope(40 * FS, "sech2"), W800, (40 * FS,) * 3, (T.Poly(2, 100 * (40 * FS) ** 2),),
+                   shaped=True)
+    on_grid = pump.harmonic(2).numbers.duration[1]
+    monkeypatch.setattr(H, "MAX_POINTS", 256)
+    stationary = pump.harmonic(2).numbers.duration[1]
+    assert stationary == pytest.approx(on_grid, rel=0.01)
+
+
 def test_a_gdd_interval_that_spans_zero_contains_the_transform_limit():
     pulse = P.Pulse(F.Envelope(30 * FS, "gaussian"), W800, (30 * FS,) * 3).adding(
         (T.Poly(2, 0.0),), (-2000 * FS**2, 2000 * FS**2))
@@ -211,9 +236,9 @@ def test_a_stretcher_uses_the_stationary_phase_mapping():
 
 
 def test_a_few_cycle_pulse_through_a_long_crystal_agrees_with_a_brute_force_fft():
-    # 6 fs sech² at 800 nm through 100 mm of sapphire: the spread of group delays over the spectrum's
-    # wings needs more than 2^16 points, so the duration comes from the stationary-phase mapping; a
-    # brute-force FFT on 2^18 points over the same window is the reference (a different method).  The
+    # 6 fs sech² at 800 nm through 100 mm of sapphire, by the check's own grid and by the
+    # stationary-phase mapping; a brute-force FFT on 2^18 points over a window that holds every wing's
+    # delay is the reference.  The
     # spectrum reaches past sapphire's zero-dispersion wavelength, where the delay turns back, and past
     # the range of its formula (NaN), neither of which may spoil the figures or warn.
     env, terms = F.Envelope(6.11 * FS, "sech2"), (T.glass("sapphire", 0.1, C),)
@@ -223,7 +248,7 @@ def test_a_few_cycle_pulse_through_a_long_crystal_agrees_with_a_brute_force_fft(
         with warnings.catch_warnings():
             warnings.simplefilter("error")
             m = F.measure(env, terms, W800)
-    assert m.method == "stationary-phase"
+            mapped = F.stationary_phase(env, terms, W800, 1.0, (0.0, 0.0), 0.95 * W800)
     window, n = 1.0010624e-10, 1 << 18
     with np.errstate(invalid="ignore"):
         dw, spec, phi = F._spectrum(env, terms, W800, 1.0, (0.0, 0.0), window, n)
@@ -233,6 +258,9 @@ def test_a_few_cycle_pulse_through_a_long_crystal_agrees_with_a_brute_force_fft(
     assert ref.duration == pytest.approx(1.876e-12, rel=2e-3)  # GDD alone: 5804 fs² × Δω_FWHM = 1.879 ps
     assert m.duration == pytest.approx(ref.duration, rel=2e-3)
     assert m.peak_factor == pytest.approx(ref.peak_factor, rel=5e-3)
+    # the stationary-phase mapping over the whole spectrum, past the turning delay: the same figures
+    assert mapped.duration == pytest.approx(ref.duration, rel=2e-3)
+    assert mapped.peak_factor == pytest.approx(ref.peak_factor, rel=5e-3)
 
 
 @pytest.mark.parametrize("shape", ["sech2", "flat_top"])
@@ -274,3 +302,18 @@ def test_a_spec_whose_path_never_changes_the_pulse_never_imports_numpy():
     subprocess.run([sys.executable, "-c", code], cwd=root, capture_output=True, text=True, check=True)
     out = subprocess.run([sys.executable, "-c", code], cwd=root, capture_output=True, text=True, check=True)
     assert out.stdout.strip() == "False"
+
+
+def test_a_compressed_pulse_with_a_large_tod_is_not_taken_as_stretched():
+    # 31.4 fs (30 nm at 800 nm) after a grating pair that leaves 1.98e6 fs³ of TOD: the far wings' delays
+    # span ~100 ps, but the pulse is ~335 fs (a brute-force FFT over a window holding all of them)
+    tl = 0.4413 / (C * 30e-9 / 800e-9**2)
+    env, terms = F.Envelope(tl, "gaussian"), (T.Poly(3, 1.978e6 * FS**3),)
+    window, n = 400e-12, 1 << 19
+    dw, spec, phi = F._spectrum(env, terms, W800, 1.0, (0.0, 0.0), window, n)
+    intensity = np.abs(np.fft.fftshift(np.fft.fft(spec))) ** 2
+    ref = F._measures((np.arange(n) - n // 2) * window / n, intensity, window / n, spec, dw, phi)
+    for extra_gdd in (0.0, -6.07e4 * FS**2, 6.07e4 * FS**2):  # the corners of a ±6 % GDD tolerance too
+        m = F.measure(env, terms, W800, 1.0, (extra_gdd, 0.0))
+        assert m.duration > 10 * tl
+    assert F.measure(env, terms, W800).duration == pytest.approx(ref.duration, rel=2e-3)

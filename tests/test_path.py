@@ -515,3 +515,14 @@ def test_the_net_fod_carries_the_tolerance_of_the_stages_fod(check):
                                                 "{name: m, kind: dispersion, fod: 1000 fs^4}"))
     fod = cell(r, "net_fod", "m")
     assert (fod.low, fod.value, fod.high) == pytest.approx((800e-60, 1000e-60, 1200e-60), rel=1e-6)
+
+
+def test_a_laser_gdd_is_checked_against_its_duration_without_a_path(check):
+    # a maker's sheet with no path: 5000 fs² on the 60 fs limit of 15.7 nm gives 238.7 fs (the closed
+    # form), not the stated 100 fs; and without a duration, a note says what the chirp gives
+    r = check("laser: {wavelength: 800 nm, pulse_duration: 100 fs, spectral_bandwidth: 15.7 nm, "
+              "pulse_shape: gaussian, gdd: 5000 fs^2}\n")
+    assert [f.rule for f in r.findings if f.severity == "error"] == ["laser-chirp-mismatch"]
+    assert "dispersion-compensation" not in [f.rule for f in r.findings]
+    r = check("laser: {wavelength: 800 nm, spectral_bandwidth: 15.7 nm, pulse_shape: gaussian, gdd: 5000 fs^2}\n")
+    assert any(f.rule == "stage-model" and "238.7 fs" in f.message for f in r.findings)

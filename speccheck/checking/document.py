@@ -18,6 +18,7 @@ from speccheck.checking.measured_data import DataFiles
 from speccheck.checking.report import Report
 from speccheck.records.findings import Cell, FileResult, Finding
 from speccheck.reading.loader import Limits, load
+from speccheck.physics.quantities import LASER_CHIRP
 from speccheck.physics.relations import Context
 from speccheck.reading.schema import validate
 from speccheck.physics.shapes import BEAM_PROFILES, DEFAULT_SHAPE, PULSE_SHAPES
@@ -70,7 +71,9 @@ class Checker:
                 points = data.get("operating_points")
                 if isinstance(points, list):
                     self._operating_points(block, points, tolerance, report, sheet)
-                if isinstance(data.get("path"), list) or isinstance(data.get("target"), dict):
+                # the path, and also a laser that states the chirp its pulse carries (its duration is checked)
+                if isinstance(data.get("path"), list) or isinstance(data.get("target"), dict) or any(
+                        block.get(k) is not None for k in LASER_CHIRP if k != "chirp"):
                     from speccheck.checking.walker import check_path
 
                     ends, fields = check_path(self, data, tolerance, report, sheet)

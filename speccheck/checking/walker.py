@@ -227,7 +227,8 @@ class PathWalk:
         except NUMERIC_FAILURES as exc:  # a chirp its field cannot hold: said, and the path goes on without it
             self.report.add("out-of-model-range", f"laser: the field of its chirped pulse cannot be computed "
                             f"({_failure(exc)})", ("laser",), key=True)
-        self.walk(self.data.get("path"), ("path",), beam, ["laser"], self.data.get("target"), ("target",))
+        if isinstance(self.data.get("path"), list) or isinstance(self.data.get("target"), dict):
+            self.walk(self.data.get("path"), ("path",), beam, ["laser"], self.data.get("target"), ("target",))
         self.report.dedupe = False
 
     def walk(self, stages, at: tuple, beam: Beam, columns: list, target, target_at: tuple) -> None:

@@ -144,7 +144,9 @@ def sample(env: Envelope, terms, omega0: float, scale: float = 1.0, extra=(0.0, 
     half = min(max(_support(env, scale), math.pi * _STEPS_PER_TL / tl), 0.95 * omega0)
     coarse = np.linspace(-half, half, 257)
     amp = np.abs(env.at(coarse, scale))
-    live = amp > 1e-3 * amp.max()
+    # the delays of the spectrum above 1e-4 of its peak intensity: a far wing's delay (a large TOD's)
+    # may wrap round the window, with energy below 1e-4 of the pulse's
+    live = amp > 1e-2 * amp.max()
     with np.errstate(invalid="ignore"):
         phi = _phase(terms, omega0, np.where(live, coarse, 0.0), extra)
         delay = np.gradient(phi, coarse)
@@ -177,7 +179,13 @@ def measure(env: Envelope, terms, omega0: float, scale: float = 1.0, extra=(0.0,
     to ``max_points`` points, beyond them by the stationary-phase mapping)."""
     half, window, n = sample(env, terms, omega0, scale, extra)
     if n > max_points:
-        return stationary_phase(env, terms, omega0, scale, extra, half)
+        mapped = stationary_phase(env, terms, omega0, scale, extra, half)
+        if mapped.duration >= _MAPPED * env.tl * scale:
+            return mapped
+        # not stretched enough for the mapping to hold (a short pulse on a wide spread of delays): the
+        # FFT on the largest grid, its window what that grid can span (the far wings wrap round)
+        n = max_points
+        window = n * math.pi / half
     dw, spec, phi = _spectrum(env, terms, omega0, scale, extra, window, n)
     # zero-padded to four times the points: the time step is a quarter of the grid's
     padded = np.zeros(_PAD * n, dtype=complex)
@@ -190,6 +198,7 @@ def measure(env: Envelope, terms, omega0: float, scale: float = 1.0, extra=(0.0,
 
 
 _PAD = 4
+_MAPPED = 10.0  # the stationary-phase mapping is taken only for a pulse stretched past this many τ0
 
 
 def measure_set(env: Envelope, terms, omega0: float, points) -> list[Measures]:

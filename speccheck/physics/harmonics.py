@@ -8,6 +8,8 @@ import math
 import numpy as np
 
 from speccheck.physics.field import MAX_POINTS, Envelope, _spectrum, measure, sample
+from speccheck.physics.model_range import OutOfModelRange
+from speccheck.physics.phase_terms import total_phase
 
 def time_profile(env: Envelope, terms, omega0: float, scale: float = 1.0, points: int = 400):
     """(t, I(t)/max) around the pulse, for plots."""
@@ -26,18 +28,36 @@ def time_profile(env: Envelope, terms, omega0: float, scale: float = 1.0, points
     return t[lo:hi:stride], inten[lo:hi:stride] / inten.max()
 
 
-def harmonic(env: Envelope, terms, omega0: float, order: int) -> Envelope:
-    """The n-th harmonic's envelope in the thin-crystal limit: E_n(t) ∝ E(t)^n, carried as a
-    sampled spectrum about n·ω0 (its own τ0 from its flat-phase transform)."""
+def harmonic(env: Envelope, terms, omega0: float, order: int, gdd: float = 0.0) -> Envelope:
+    """The n-th harmonic's envelope in the thin-crystal limit, E_n(t) ∝ E(t)^n, carried as a sampled
+    spectrum about n·ω0 (its own τ0 from its flat-phase transform), with the GDD φ2/n that a pump GDD
+    ``gdd`` gives it taken out (the caller carries it as a phase term: a stretched harmonic's spectrum
+    then has a smooth phase to interpolate).
+
+    On a grid where one fits: E(t)^n by FFT, exact.  For a pump chirped beyond any grid, stationary
+    phase: each frequency ω0 + Δω arrives alone at its group delay, so E^n there oscillates at
+    n(ω0 + Δω) with amplitude A(Δω)^n and phase n·φ(Δω) (A. M. Weiner, *Ultrafast Optics*, ch. 4; for a
+    Gaussian with GDD alone this is exact at any chirp: the harmonic is √n wider with φ2/n)."""
     half, window, n = sample(env, terms, omega0, oversample=8.0)  # a fine spectral step: it is interpolated
-    n = min(n, MAX_POINTS)
-    window = n * (2.0 * half / n) if n == MAX_POINTS else window
-    dw, spec, _ = _spectrum(env, terms, omega0, 1.0, (0.0, 0.0), window, n)
-    e_t = np.fft.fft(spec)
-    out = np.fft.ifft(e_t ** order)
-    out = out / np.abs(out).max()
-    order_idx = np.argsort(dw)
-    offsets, values = dw[order_idx], out[order_idx]
+    if n <= MAX_POINTS:
+        dw, spec, _ = _spectrum(env, terms, omega0, 1.0, (0.0, 0.0), window, n)
+        e_t = np.fft.fft(spec)
+        out = np.fft.ifft(e_t ** order)
+        order_idx = np.argsort(dw)
+        offsets, values = dw[order_idx], out[order_idx]
+        if gdd:
+            values = values * np.exp(-0.5j * (gdd / order) * offsets**2)
+    else:
+        reach = min(env.half_span(), 0.95 * omega0)
+        dw = np.linspace(-reach, reach, 8193)
+        with np.errstate(invalid="ignore"):
+            phase = total_phase(terms, omega0, dw) - 0.5 * gdd * dw**2
+        amp = env.at(dw)
+        if not np.all(np.isfinite(phase[np.abs(amp) > 1e-3 * np.abs(amp).max()])):
+            raise OutOfModelRange("a phase is not defined across the pump's spectrum (beyond the range of its "
+                                  "formula)")
+        offsets, values = order * dw, np.where(np.isfinite(phase), (amp * np.exp(1j * phase)) ** order, 0.0)
+    values = values / np.abs(values).max()
     return sampled(offsets, values, omega0 * order)
 
 

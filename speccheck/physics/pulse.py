@@ -89,12 +89,15 @@ class Pulse:
                        fod_spread=(self.fod_spread[0] + fod[0], self.fod_spread[1] + fod[1]))
 
     def harmonic(self, order: int) -> "Pulse":
-        """E(t)^order of the typical field (thin crystal, undepleted): the windows' GDD and TOD
-        become φ2/n and φ3/n² (the phase of E^n at n times the offsets)."""
-        env = H.harmonic(self.envelope, self.terms, self.omega0, order)
+        """E(t)^order of the typical field (thin crystal, undepleted; ``harmonics.harmonic``), the GDD
+        φ2/n that the pump's net GDD φ2 gives the harmonic carried as a phase term.  The windows' GDD and
+        TOD become φ2/n and φ3/n² (the phase of E^n at n times the offsets)."""
+        gdd = self.taylor[0]
+        env = H.harmonic(self.envelope, self.terms, self.omega0, order, gdd)
         ratio = env.tl / self.envelope.tl
         tl = tuple(x * ratio for x in self.tl)
-        return Pulse(env, self.omega0 * order, tl, (), tuple(w.scaled(1.0 / order, 1.0 / order**2)
+        terms = (T.Poly(2, gdd / order),) if gdd else ()
+        return Pulse(env, self.omega0 * order, tl, terms, tuple(w.scaled(1.0 / order, 1.0 / order**2)
                                                             for w in self.windows), True, self.sign_unknown,
                      self.share, tuple(x / order**3 for x in self.fod_spread))
 

@@ -188,8 +188,8 @@ _RULES = (
          "A laser block that states the GDD (and TOD) its pulse carries fixes its duration: the pulse of its "
          "shape at the transform limit of its bandwidth, with that phase, by FFT of the field. A stated "
          "pulse_duration outside that interval contradicts it.",
-         "laser: {pulse_duration: 100 fs, spectral_bandwidth: 15.7 nm, gdd: 5000 fs^2}",
-         "laser: {pulse_duration: 100 fs, spectral_bandwidth: 15.7 nm, gdd: 1160 fs^2}"),
+         "laser: {wavelength: 800 nm, pulse_duration: 100 fs, spectral_bandwidth: 15.7 nm, gdd: 5000 fs^2}",
+         "laser: {wavelength: 800 nm, pulse_duration: 100 fs, spectral_bandwidth: 15.7 nm, gdd: 1730 fs^2}"),
     Rule("target-met", "note", "a target requirement that the path meets",
          "Each target line is a requirement at the last stage of its branch; the note gives the margin."),
     Rule("target-not-met", "error", "a target requirement that the path does not meet",

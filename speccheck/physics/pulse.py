@@ -39,10 +39,6 @@ GAUSSIAN_A = PULSE_SHAPES["gaussian"].peak_power_factor
 _NEGLIGIBLE = 0.01  # rad: phase beyond second order that changes no duration visibly
 # x·τ0 out to which a shape's spectrum matters for that test: its intensity is 1e-3 of its peak there
 _REACH = {"gaussian": 4.0, "sech2": 6.0, "flat_top": 60.0}
-# A flat top's field here is band limited (its spectrum cut at ±60/τ0), so its peak overshoots by the
-# Gibbs factor (measured: P_pk·τ/E = 1.1806 unchirped, against the shape's 1): its peak-power factors are
-# divided by it.  The Gaussian's and sech²'s agree with their closed forms to 1e-7 (tests/test_field.py).
-_GIBBS = {"flat_top": 1.0 / 1.18061459220468}
 
 
 @dataclass(frozen=True)
@@ -129,9 +125,8 @@ class Pulse:
                               1.0, float("nan"), "closed form")
         if self._closed:
             duration, factor, main = B.broadened(shape, self.envelope.tl * scale, self.taylor[0] + gdd)
-            return F.Measures(duration, factor * _GIBBS.get(shape, 1.0), main, float("nan"), "table")
-        m = F.measure(self.envelope, self.terms, self.omega0, scale, (gdd, tod))
-        return replace(m, peak_factor=m.peak_factor * _GIBBS.get(shape, 1.0))
+            return F.Measures(duration, factor, main, float("nan"), "table")
+        return F.measure(self.envelope, self.terms, self.omega0, scale, (gdd, tod))
 
     @cached_property
     def numbers(self) -> Numbers:
@@ -149,8 +144,6 @@ class Pulse:
             points = [self._at(*c) for c in corners]
         else:
             points = F.measure_set(self.envelope, self.terms, self.omega0, corners)
-            gibbs = _GIBBS.get(self.envelope.shape, 1.0)
-            points = [replace(p, peak_factor=p.peak_factor * gibbs) for p in points]
         typ = points[0]
         durations = [p.duration for p in points]
         lo, mid, hi = self.share

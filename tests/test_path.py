@@ -459,7 +459,7 @@ def test_a_duration_at_its_transform_limit_keeps_the_chirp_its_tolerance_allows(
 
 
 def test_a_model_failure_in_its_own_words_is_said_at_the_stage():
-    from speccheck.checking.walker import _failure
+    from speccheck.checking.failures import failure as _failure
     from speccheck.physics.model_range import OutOfModelRange
 
     assert _failure(OutOfModelRange("the spectrum reaches zero frequency")) == "the spectrum reaches zero frequency"
@@ -526,3 +526,27 @@ def test_a_laser_gdd_is_checked_against_its_duration_without_a_path(check):
     assert "dispersion-compensation" not in [f.rule for f in r.findings]
     r = check("laser: {wavelength: 800 nm, spectral_bandwidth: 15.7 nm, pulse_shape: gaussian, gdd: 5000 fs^2}\n")
     assert any(f.rule == "stage-model" and "238.7 fs" in f.message for f in r.findings)
+
+
+def test_a_prism_insertion_may_be_zero_and_a_laser_gdd_may_be_given_by_its_ends(check):
+    r = check(_CHIRPED.format(extra="  gdd: {min: -1800 fs^2, max: -1700 fs^2}").replace(
+        "{name: m, kind: dispersion, gdd: 0 fs^2}",
+        "{name: m, kind: prism_compressor, material: fused_silica, apex_separation: 500 mm, insertion: 0 mm}"))
+    assert not [f for f in r.findings if f.severity == "error"]
+    assert cell(r, "net_gdd", "m").value < -1750e-30  # the laser's −1750 fs² and the pair's negative GDD
+
+
+def test_a_pedestal_through_a_harmonic_and_a_shape_factor_the_field_changes_are_said(check):
+    r = check(_CHIRPED.format(extra="  pulse_duration: 60 fs\n  pulse_shape: sech2\n  energy_in_main_peak: 70%")
+              .replace("{name: m, kind: dispersion, gdd: 0 fs^2}",
+                       "{name: m, kind: material, material: fused_silica, thickness: 1 mm}\n"
+                       "  - {name: h, kind: harmonic, order: 2, efficiency: 20%}"))
+    notes = " ".join(f.message for f in r.findings if f.rule == "stage-model")
+    assert "peak power here is a lower bound" in notes  # the pedestal converts less than the main peak
+    assert "the peak power follows the field" in notes  # the chirped sech² field's P·τ/E is not the shape's
+
+
+def test_a_wide_bandwidth_is_said_to_be_linearised_once(check):
+    r = check("laser: {wavelength: 800 nm, spectral_bandwidth: 300 nm, pulse_duration: 4 fs, pulse_energy: 1 uJ, "
+              "repetition_rate: 1 kHz}\npath:\n  - {name: a, kind: optic}\n  - {name: b, kind: optic}\n")
+    assert [f.rule for f in r.findings].count("bandwidth-linearised") == 1

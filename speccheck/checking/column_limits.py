@@ -59,7 +59,8 @@ def report_bandwidth(col, cells: dict[str, Cell]) -> None:
     if not (bw and carrier and bw.value and carrier.value) or bw.status == "conflict":
         return
     fraction = bw.value / carrier.value
-    if LINEARISED_FROM < fraction <= 1.0 and any(q in col.stated for q in _BANDWIDTHS[:2]):
+    if LINEARISED_FROM < fraction <= 1.0 and any(q in col.stated and q not in col.inherited
+                                                 for q in _BANDWIDTHS[:2]):  # said where it is stated
         # the half-maximum points λ ∓ Δλ/2 give Δν = c Δλ / (λ² − Δλ²/4) exactly; c Δλ / λ² is
         # (Δλ/λ)²/4 short of it: 1% at Δλ/λ = 20% (Taylor expansion of 1/λ)
         where = next(q for q in _BANDWIDTHS if q in col.stated)

@@ -73,11 +73,14 @@ def laser_chirp(walk) -> dict:
         except ValueProblem as e:
             walk.report.add(e.rule, e.message, ("laser", key), quantities=(f"laser.{key}",))
             continue
-        if s.typical is None:
+        typ = s.typical
+        if typ is None and math.isfinite(s.low) and math.isfinite(s.high) and s.text.startswith("{"):
+            typ = (s.low + s.high) / 2.0  # {min, max}: both ends given, the middle typical
+        if typ is None:
             walk.report.add("invalid-value", f"laser.{key}: {s.text} leaves the chirp open; give a value "
-                            "('-2000 fs^2 ± 200 fs^2')", ("laser", key))
+                            "('-2000 fs^2 ± 200 fs^2') or both ends ({min: …, max: …})", ("laser", key))
             continue
-        out[key] = (s.low, s.typical, s.high)
+        out[key] = (s.low, typ, s.high)
     if "tod" in out and "gdd" not in out:
         out["gdd"] = (0.0, 0.0, 0.0)
     if "gdd" in out and "chirp" in out and out["gdd"][1] and (out["gdd"][1] > 0) != (out["chirp"] == "positive"):

@@ -108,7 +108,9 @@ def compensation(walk, last: str, beam: Beam, at: tuple) -> None:
                     f"{walk.show('pulse_duration', tl, 'fs')} transform-limited: the net GDD there is "
                     f"{format_number(net[0][1] * 1e30, 4)} fs² (TOD {format_number(net[1][1] * 1e45, 4)} fs³); adding "
                     f"{format_number(gdd * 1e30, 4)} fs²"
-                    f"{tod_text} (a compressor or prechirp) would give the highest peak power", at, key=True)
+                    f"{tod_text} (a compressor or prechirp) would give the highest peak power"
+                    + ("; the laser's chirp sign is not stated, and this is for positive chirp (state laser.chirp "
+                       "for the other)" if made.sign_unknown else ""), at, key=True)
 
 
 def strong_field(walk, last: str, target, target_at: tuple) -> None:

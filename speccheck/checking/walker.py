@@ -18,6 +18,7 @@ from dataclasses import replace
 
 from speccheck.checking import targets, wording
 from speccheck.checking.column import BlockCheck
+from speccheck.checking.failures import NUMERIC_FAILURES, failure as _failure, in_range as _in_range
 from speccheck.checking.laser_pulse import beam_from, chirp_duration, laser_chirp, measured_spectrum
 from speccheck.checking.stage_checks import CHECKS, Visit, checks_of
 from speccheck.physics import hazards, materials
@@ -109,9 +110,14 @@ class PathWalk:
             try:
                 s = parse_angle(label, raw, self.param_tolerance(p.name)) if p.dimension == "angle" else \
                     self.c.values.parse_as(label, raw, p.dimension, self.param_tolerance(p.name),
-                                           signed=p.dimension in _SIGNED)
+                                           signed=p.dimension in _SIGNED or p.zero)
             except ValueProblem as e:
                 self.report.add(e.rule, e.message, at + (p.name,), quantities=(label,))
+                ok = False
+                continue
+            if p.zero and s.low < 0.0:
+                self.report.add("non-positive-value", f"{label}: {s.text} must not be negative", at + (p.name,),
+                                quantities=(label,))
                 ok = False
                 continue
             if p.choices and s.typical not in p.choices:
@@ -145,7 +151,7 @@ class PathWalk:
                     self.report.add("fraction-clipped", f"{label}: {s.text} reaches past {' and '.join(ends)}; "
                                     f"taken as {low:.4g} … {high:.4g}", at + (p.name,), quantities=(label,))
             out[p.name] = (low, typ, high)
-        if kind.one_of and not any(k in out for k in kind.one_of):
+        if kind.one_of and not any(k in out or k in stage for k in kind.one_of):  # a bad one is said already
             self.report.add("stage-parameter", f"{name}: a {kind.name} stage needs one of "
                             f"{', '.join(kind.one_of)}", at, key=True)
             ok = False
@@ -203,10 +209,13 @@ class PathWalk:
     def out_of_range(self, name: str, kind, at: tuple, exc: Exception, what: str = "") -> None:
         """Numbers so far outside a model's range that its arithmetic fails (an overflow, a
         division by zero): said at the stage, instead of a wrong number or a traceback."""
-        self.report.add("out-of-model-range",
-                        f"{name}: the {kind.name} stage" + (f" ({what})" if what else "") + " cannot be computed "
-                        f"for the beam that enters it ({_failure(exc)}); a number before it is far outside "
-                        "what its model is made for", at, key=True)
+        stage = f"{name}: the {kind.name} stage" + (f" ({what})" if what else "")
+        if isinstance(exc, OutOfModelRange):  # the model's own words say what is outside it
+            text = f"{stage} cannot be computed for the beam that enters it: {exc}"
+        else:
+            text = (f"{stage} cannot be computed for the beam that enters it ({_failure(exc)}); a number before "
+                    "it is far outside what its model is made for")
+        self.report.add("out-of-model-range", text, at, key=True)
 
     def show(self, q: str, si: float, unit: str) -> str:
         return wording.show(self.c.units, si, unit)
@@ -359,38 +368,9 @@ class PathWalk:
         if total:
             self.sheet[columns[-1]]["b_integral_total"] = Cell("derived", total, total, total, "1", "1")
 
-    # ------------------------------------------------------------ targets
-
 def _gdd_cell(v: tuple) -> Cell:
     return Cell("derived", v[0], v[2], v[1], "s^2", "fs^2")
 
-
-
-NUMERIC_FAILURES = (OverflowError, ZeroDivisionError, ValueError, FloatingPointError)
-SI_RANGE = (1e-100, 1e100)  # as the value grammar's: what the relation table can work with
-
-
-def _in_range(beam: Beam) -> None:
-    """A stage that puts out a carried number beyond what a float holds sensibly (a chain of
-    gains reaching 1e300 W, a picker dividing a rate down to 0 Hz) has left its model's range."""
-    for q, (low, typ, high) in beam.values.items():
-        for x in (typ, high if math.isfinite(high) else None):
-            if x is None:
-                continue
-            if math.isnan(x) or x < 0 or (x != 0 and not SI_RANGE[0] <= x <= SI_RANGE[1]):
-                raise OverflowError(q)
-        if typ == 0.0 or (high == 0.0):
-            raise ZeroDivisionError(q)
-
-
-def _failure(exc: Exception) -> str:
-    if isinstance(exc, OverflowError):
-        return "a number overflows"
-    if isinstance(exc, ZeroDivisionError):
-        return "a division by zero"
-    if isinstance(exc, OutOfModelRange):  # the model's own words: say them
-        return str(exc)
-    return "a number outside a formula's domain"
 
 
 def check_path(checker, data: dict, tolerance: float, report, sheet: dict) -> tuple[list[str], list]:

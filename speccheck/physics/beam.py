@@ -89,6 +89,13 @@ class Beam:
                                      self.laser.tl_from, self.laser.spectrum)
         for text in notes:
             ctx.note(text)
+        stated = self.get("peak_power_factor")
+        if stated and stated[1] and made.terms:
+            own = made.numbers.peak_factor[1]
+            if abs(own / stated[1] - 1.0) > 0.02:
+                ctx.note(f"the laser column takes P_pk·τ/E = {stated[1]:.3g} (its pulse shape's); the chirped "
+                         f"field that gives its duration has {own:.3g}, so from here on the peak power follows the "
+                         f"field ({own / stated[1]:.3g}× the laser column's before any change)")
         return made
 
     def with_pulse(self, made, ctx) -> "Beam":

@@ -199,7 +199,8 @@ def _prism_geometry(mat, apex_separation, insertion, wavelength0):
         raise ValueError("prism material must have n > 1 at the design wavelength")
     sin_b0 = insertion / n0 / lap
     if np.any(np.asarray(sin_b0) >= 1.0):
-        raise ValueError("insertion / n must be smaller than apex_separation (the ray must pass prism 2)")
+        raise ValueError("the insertion is too deep for the apex separation: the beam would pass beyond the second "
+                         "prism (insertion / n must be less than apex_separation)")
     return n0, sin_b0
 
 

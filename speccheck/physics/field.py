@@ -32,8 +32,10 @@ from dataclasses import dataclass, field
 
 import numpy as np
 
+from speccheck.physics.measures import _UNDEFINED_OK, Measures, _crossing, _peak
 from speccheck.physics.model_range import OutOfModelRange
 from speccheck.physics.phase_terms import _d2, _d3, _d4, total_phase
+from speccheck.physics.stationary import stationary_phase
 
 _LN2 = math.log(2.0)
 _SECH2_T = 2.0 * math.acosh(math.sqrt(2.0))  # a sech² pulse's FWHM over its width T
@@ -121,15 +123,6 @@ def _unwrapped(values: np.ndarray) -> np.ndarray:
 
 
 # ---------------------------------------------------------------- the field
-@dataclass(frozen=True)
-class Measures:
-    duration: float  # s, intensity FWHM
-    peak_factor: float  # a = P_peak τ / E
-    main_peak: float  # share of the energy between the minima that bound the main peak
-    phase_rms: float  # rad, intensity-weighted rms of the phase beyond its linear part
-    method: str  # "fft" or "stationary-phase"
-
-
 def _support(env: Envelope, scale: float) -> float:
     return env.half_span() / scale
 
@@ -245,7 +238,7 @@ def measure_set(env: Envelope, terms, omega0: float, points) -> list[Measures]:
             phi = phi + tod * cubic
         if not finite:
             undefined = live & ~np.isfinite(phi)
-            if np.any(undefined & (mag > 1e-3 * mag.max())):
+            if np.any(undefined & (mag > _UNDEFINED_OK * mag.max())):
                 raise OutOfModelRange("a phase is not defined across the pulse's spectrum (beyond the range of "
                                       "its formula)")
             live = live & ~undefined
@@ -298,7 +291,7 @@ def _spectrum(env, terms, omega0, scale, extra, window, n):
         phi = np.where(live, _phase(terms, omega0, np.where(live, dw, 0.0), extra), 0.0)
     undefined = ~np.isfinite(phi)
     if np.any(undefined):  # beyond a glass formula's range: only where the spectrum carries nothing
-        if np.any(undefined & (mag > 1e-3 * mag.max())):
+        if np.any(undefined & (mag > _UNDEFINED_OK * mag.max())):
             raise OutOfModelRange("a phase is not defined across the pulse's spectrum (beyond the range of its "
                              "formula)")
         live &= ~undefined
@@ -333,92 +326,3 @@ def _measures(t, intensity, dt, spec, dw, phi) -> Measures:
     slope = float(np.sum(w * (phi - mean) * dw) / max(np.sum(w * dw * dw), 1e-300))
     rms = math.sqrt(float(np.sum(w * (phi - mean - slope * dw) ** 2) / np.sum(w)))
     return Measures(float(duration), float(a), min(main, 1.0), rms, "fft")
-
-
-def _peak(intensity: np.ndarray, k: int) -> float:
-    """The maximum of the sampled intensity, refined by the parabola through the three
-    samples about it (the samples are a sixteenth of τ0 apart)."""
-    if k == 0 or k == len(intensity) - 1:
-        return float(intensity[k])
-    fm, f0, fp = intensity[k - 1], intensity[k], intensity[k + 1]
-    den = fm - 2.0 * f0 + fp
-    return float(f0 - (fm - fp) ** 2 / (8.0 * den)) if den < 0 else float(f0)
-
-
-def _crossing(t: np.ndarray, intensity: np.ndarray, j: int, level: float) -> float:
-    """Where the intensity crosses ``level`` between samples j and j + 1: inverse cubic
-    (Lagrange) interpolation through the four samples about the crossing."""
-    j = min(max(j, 1), len(t) - 3)
-    ys, xs = intensity[j - 1: j + 3].tolist(), t[j - 1: j + 3].tolist()
-    rising = ys[0] < ys[1] < ys[2] < ys[3]
-    if not (rising or ys[0] > ys[1] > ys[2] > ys[3]):  # not monotonic: linear
-        y0, y1 = ys[1], ys[2]
-        return float(xs[1] + (level - y0) / (y1 - y0) * (xs[2] - xs[1])) if y1 != y0 else float(xs[1])
-    out = 0.0
-    for i in range(4):
-        term = xs[i]
-        for m in range(4):
-            if m != i:
-                term *= (level - ys[m]) / (ys[i] - ys[m])
-        out += term
-    return float(out)
-
-
-def stationary_phase(env, terms, omega0, scale, extra, half) -> Measures:
-    """Duration and peak-power factor of a strongly chirped pulse by stationary phase: each
-    frequency arrives at its group delay t(ω) = φ'(ω) (A. M. Weiner, *Ultrafast Optics*, ch. 4,
-    exact in the limit of large chirp).  The spectral energy |A(ω)|² dω is summed into bins of
-    arrival time, so a delay that turns (a glass's zero-dispersion wavelength inside the
-    spectrum) gives a finite peak, not the caustic |A|²/|φ''| → ∞, and frequencies beyond a
-    formula's range (a NaN phase) carry nothing."""
-    dw = np.linspace(-half, half, 16385)
-    step = dw[1] - dw[0]
-    amp = np.abs(env.at(dw, scale)) ** 2
-    with np.errstate(invalid="ignore", divide="ignore", over="ignore"):
-        phi = _phase(terms, omega0, dw, extra)
-        delay = np.gradient(phi, dw)
-    live = (amp > 1e-9 * amp.max()) & np.isfinite(delay)
-    if np.any(~live & (amp > 1e-3 * amp.max())):
-        raise OutOfModelRange("a phase is not defined across the pulse's spectrum (beyond the range of its formula)")
-    # between neighbouring frequency samples the energy arrives evenly between their delays: a ramp of
-    # the arrived energy per interval, so branches of a delay that turns back overlap without noise
-    both = live[:-1] & live[1:]
-    a, b = np.minimum(delay[:-1], delay[1:])[both], np.maximum(delay[:-1], delay[1:])[both]
-    m = 0.5 * (amp[:-1] + amp[1:])[both] * step
-    energy = float(np.sum(m))
-    mid = 0.5 * (a + b)
-    mean = float(np.sum(m * mid)) / energy
-    spread = math.sqrt(float(np.sum(m * (mid - mean) ** 2)) / energy)
-    order = np.argsort(mid)
-    cum = np.cumsum(m[order]) / energy
-    t_lo = float(a[order][np.searchsorted(cum, 5e-7)])
-    t_hi = float(b[order][min(np.searchsorted(cum, 1.0 - 5e-7), len(cum) - 1)])
-    width = max(spread / 400.0, env.tl * scale / 4.0)
-    bins = int(min(max((t_hi - t_lo) / width, 8), 200000)) + 1
-    edges = np.linspace(t_lo - width, t_hi + width, bins + 1)
-    # times from the mean (no cancellation of large sums); a ramp narrower than a tenth of a bin is a
-    # deposit within the bin
-    arrived = _ramps(a - mean, np.maximum(b, a + width / 10.0) - mean, m, edges - mean)
-    inten = np.diff(arrived) / (edges[1] - edges[0])
-    centres = 0.5 * (edges[:-1] + edges[1:])
-    k = int(np.argmax(inten))
-    peak = float(inten[k])
-    above = np.flatnonzero(inten >= peak / 2.0)
-    lo, hi = int(above[0]), int(above[-1])
-    duration = _crossing(centres, inten, hi, peak / 2.0) - _crossing(centres, inten, lo - 1, peak / 2.0)
-    return Measures(float(duration), float(peak * duration / energy), 1.0, float("nan"), "stationary-phase")
-
-
-def _ramps(a, b, m, t):
-    """Σ_k m_k·clip((t − a_k)/(b_k − a_k), 0, 1) at each t: the energy arrived by t when m_k
-    arrives evenly over [a_k, b_k].  Each ramp is (relu(t − a) − relu(t − b))/(b − a), and a sum of
-    c·relu(t − s) is t·Σc − Σc·s over the knots s below t (cumulative sums)."""
-    span = b - a
-    knots = np.concatenate((a, b))
-    slope = np.concatenate((m / span, -m / span))
-    order = np.argsort(knots, kind="stable")
-    knots, slope = knots[order], slope[order]
-    c = np.concatenate(([0.0], np.cumsum(slope)))
-    cs = np.concatenate(([0.0], np.cumsum(slope * knots)))
-    j = np.searchsorted(knots, t, side="right")
-    return t * c[j] - cs[j]

@@ -53,7 +53,7 @@ def harmonic(env: Envelope, terms, omega0: float, order: int, gdd: float = 0.0) 
         with np.errstate(invalid="ignore"):
             phase = total_phase(terms, omega0, dw) - 0.5 * gdd * dw**2
         amp = env.at(dw)
-        if not np.all(np.isfinite(phase[np.abs(amp) > 1e-3 * np.abs(amp).max()])):
+        if not np.all(np.isfinite(phase[np.abs(amp) > 1e-2 * np.abs(amp).max()])):
             raise OutOfModelRange("a phase is not defined across the pump's spectrum (beyond the range of its "
                                   "formula)")
         offsets, values = order * dw, np.where(np.isfinite(phase), (amp * np.exp(1j * phase)) ** order, 0.0)

@@ -132,14 +132,18 @@ class Pulse:
     def numbers(self) -> Numbers:
         scales = sorted({self.tl[0] / self.tl[1], self.tl[2] / self.tl[1]}) if self.tl[1] else [1.0]
         corners = [(1.0, 0.0, 0.0)]
+        extra: list = []  # the shortest pulse within a window, where higher orders move it
         for w in self.windows:
             tods = sorted(set(w.tod)) if self._tod_matters(w) else [0.0]
             gdds = list(w.gdd)
             best = -self.taylor[0]  # cancels the typical net GDD: the shortest pulse, near enough
             if w.gdd[0] < best < w.gdd[1]:
                 gdds.append(best)
+                if self._higher_orders_matter():  # FOD moves the shortest pulse: the best GDD and TOD in reach
+                    for g, t in (self.compensation(), self._shortest):
+                        extra.append((1.0, min(max(g, w.gdd[0]), w.gdd[1]), min(max(t, w.tod[0]), w.tod[1])))
             corners += [(s, g, t) for s in scales for g in gdds for t in tods]
-        corners = list(dict.fromkeys(corners))
+        corners = list(dict.fromkeys(corners + extra))
         if self._closed:
             points = [self._at(*c) for c in corners]
         else:
@@ -187,34 +191,55 @@ class Pulse:
         return abs(w.tod[1] - w.tod[0]) * x**3 / 6.0 >= _NEGLIGIBLE
 
     def compensation(self) -> tuple[float, float]:
+        return self._optimum
+
+    @cached_property
+    def _optimum(self) -> tuple[float, float]:
         """The GDD and TOD to add for the highest peak power: the negatives of the net GDD and TOD
         at the carrier, then, where fourth and higher orders matter (over 0.05 rad across the
-        spectrum), a few steps of coordinate search on the peak power."""
+        spectrum), a pattern search on the peak power."""
+        return self._search(lambda m: m.peak_factor / m.duration)
+
+    @cached_property
+    def _shortest(self) -> tuple[float, float]:
+        """The GDD and TOD to add for the shortest pulse (where higher orders matter, not the same as
+        for the highest peak power: a satellite may take energy and leave a short main peak)."""
+        return self._search(lambda m: -m.duration)
+
+    def _search(self, objective) -> tuple[float, float]:
         gdd0, tod0, fod = self.taylor
         best = (-gdd0, -tod0)
         tl = self.envelope.tl
-        if self.envelope.shape is not None and abs(fod) * (_REACH[self.envelope.shape] / tl) ** 4 / 24.0 < 0.05:
+        if not self._higher_orders_matter():
             return best
 
-        def peak(g, t):
-            m = F.measure(self.envelope, self.terms, self.omega0, 1.0, (g, t))
-            return m.peak_factor / m.duration
+        def score(g, t):
+            return objective(F.measure(self.envelope, self.terms, self.omega0, 1.0, (g, t)))
 
-        step = [0.05 * tl * tl, 0.05 * tl**3]
-        value = peak(*best)
-        for _ in range(8):
-            moved = False
-            for k in (0, 1):
-                for sign in (1, -1):
-                    trial = list(best)
-                    trial[k] += sign * step[k]
-                    v = peak(*trial)
-                    if v > value * (1 + 1e-9):
-                        best, value, moved = tuple(trial), v, True
-                        break
-            if not moved:
-                step = [s / 3.0 for s in step]
+        # a pattern search, its first steps as large as the GDD and TOD that balance the FOD across the
+        # spectrum's half-width (φ4·Δω²/2 and φ4·Δω), halved when no step gains
+        reach = 2.0 / tl
+        step = [max(0.05 * tl * tl, abs(fod) * reach**2 / 2.0), max(0.05 * tl**3, abs(fod) * reach)]
+        value = score(*best)
+        for _ in range(60):
+            trials = [(best[0] + sign * step[0], best[1]) for sign in (1, -1)] + \
+                     [(best[0], best[1] + sign * step[1]) for sign in (1, -1)]
+            scored = max((score(*trial), trial) for trial in trials)
+            if scored[0] > value + 1e-9 * abs(value):
+                value, best = scored
+            else:
+                step = [s / 2.0 for s in step]
+                if step[0] < 0.01 * tl * tl and step[1] < 0.01 * tl**3:
+                    break
         return best
+
+    def _higher_orders_matter(self) -> bool:
+        """Phase beyond third order over 0.05 rad across the spectrum: the compressing GDD and TOD are then
+        not just the negatives of the net ones (a sampled spectrum is always taken to need the search)."""
+        if self.envelope.shape is None:
+            return True
+        fod = self.taylor[2]
+        return abs(fod) * (_REACH[self.envelope.shape] / self.envelope.tl) ** 4 / 24.0 >= 0.05
 
 
 def at_laser(shape: str, tl: Value, duration: Value | None, omega0: float, chirp: str | None,

@@ -35,6 +35,7 @@ class Param:
     default: float | None = None
     choices: tuple = ()
     fraction: bool = False  # a share of the beam: never more than 1
+    zero: bool = False  # 0 is a value it may take (never negative)
 
 
 @dataclass(frozen=True)
@@ -206,7 +207,7 @@ STAGE_KINDS: dict[str, StageKind] = {k.name: k for k in (
               "E. B. Treacy, IEEE J. Quantum Electron. 5, 454 (1969): the grating equation, exact phase"),
     StageKind("prism_compressor", (Param("material", "material_name", required=True),
                                    Param("apex_separation", "m", required=True),
-                                   Param("insertion", "m", default=0.0), _T), prism_compressor,
+                                   Param("insertion", "m", default=0.0, zero=True), _T), prism_compressor,
               "a double-pass Brewster prism pair: apex separation and insertion depth",
               "R. L. Fork, O. E. Martinez and J. P. Gordon, Opt. Lett. 9, 150 (1984): ray geometry, exact phase"),
     StageKind("harmonic", (Param("order", "1", required=True, choices=(2.0, 3.0)),

@@ -175,8 +175,10 @@ _RULES = (
          "Materials come from the material table (physics/material_data.py) with published Sellmeier coefficients.",
          "material: quartz_glass", "material: fused_silica"),
     Rule("stage-model", "note", "an approximation a stage's physics makes",
-         "Harmonic and parametric stages use first estimates (common practice): a harmonic of a Gaussian "
-         "pulse is √order shorter; a parametric output is as long as its pump."),
+         "Each stage states the model it takes: a harmonic's field is E(t)^n of the pump's (thin crystal, "
+         "undepleted pump), a parametric output is as long as its pump and transform limited (a first "
+         "estimate, common practice), a grating or prism pair is traced in first order and double pass, an "
+         "unstated chirp sign covers both signs, a focus without M² takes M² ≥ 1."),
     Rule("splitter-exceeds-input", "error", "branches of a splitter that take more than the input",
          "The energies of the two branches of a splitter cannot add up to more than the beam entering it.",
          "branches: {pump: {fraction: 70%}, probe: {fraction: 40%}}",
@@ -200,9 +202,11 @@ _RULES = (
          "The path's interval for the quantity straddles the requirement."),
     Rule("target-unknown", "warning", "a target the path does not determine",
          "The numbers needed to compute the quantity at the end of the branch are not stated."),
-    Rule("dispersion-compensation", "note", "the GDD that would give the shortest pulse at the target",
-         "With net GDD φ at the end of a branch, adding −φ returns the pulse to its transform limit "
-         "(Gaussian model: τ = τ_TL √(1 + (4 ln2 φ/τ_TL²)²))."),
+    Rule("dispersion-compensation", "note", "the GDD and TOD that would give the highest peak power at the end",
+         "At the end of a branch whose pulse is longer than its transform limit: the GDD (and the TOD, where it "
+         "matters) to add for the highest peak power. They are the negatives of the net GDD and TOD, or, where "
+         "fourth and higher orders matter, found by a search on the field's peak power. With an unstated chirp "
+         "sign they are for positive chirp."),
     # ---- physical limits and safety
     Rule("self-focusing", "error", "a peak power above the critical power for self-focusing in a solid",
          "P_cr = 3.77 λ² / (8π n0 n2) for a Gaussian beam (Marburger's formula; J. H. Marburger, Prog. "

@@ -138,9 +138,18 @@ def test_a_focus_below_the_diffraction_limit_is_impossible(check):
                       "    measured: {beam_diameter: 10 µm}\n")
     assert "spot-below-diffraction-limit" in [f.rule for f in r.findings]
     ok = check(LASER + "  - name: lens\n    kind: focus\n    focal_length: 100 mm\n"
-                       "    measured: {beam_diameter: 80 µm}\n")
+                       "    measured: {beam_diameter: 52 µm}\n")
     assert not [f for f in ok.findings if f.severity == "error"]
-    assert cell(ok, "beam_diameter", "lens").value == pytest.approx(80e-6)  # the measured, larger spot
+    assert cell(ok, "beam_diameter", "lens").value == pytest.approx(52e-6)  # the measured spot, narrowed
+    # larger than M² = 1 allows: the measurement contradicts the carried beam (a larger M², or a
+    # misplaced camera), whatever the kind of the stage
+    wide = check(LASER + "  - name: lens\n    kind: focus\n    focal_length: 100 mm\n"
+                         "    measured: {beam_diameter: 200 µm}\n")
+    assert [f.rule for f in wide.findings if f.severity == "error"] == ["measured-mismatch"]
+    # with M² unstated the spot has no upper end, and a wide one is possible
+    loose = check(LASER.replace("  m2: 1\n", "") + "  - name: lens\n    kind: focus\n    focal_length: 100 mm\n"
+                  "    measured: {beam_diameter: 200 µm}\n")
+    assert not [f for f in loose.findings if f.severity == "error"]
 
 
 def test_a_focus_tighter_than_lambda_over_pi_is_noted(check):

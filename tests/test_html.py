@@ -170,7 +170,9 @@ def test_the_plots_are_inline_svg_with_unique_ids(tmp_path):
     assert "laser 35 fs; pump_lens 24.75 fs; probe_lens 56.83 fs" in page.plain
     # the pump arm's second harmonic is D/√2 across (the square of a Gaussian profile), so its focus
     # is √2 wider than a beam of the fundamental's size would give at 515 nm
-    assert "pump_lens: w0 14.04 µm" in page.plain and "probe_lens: w0 66.21 µm" in page.plain
+    # (66.19 µm, not 4M²λf/(πD)'s 66.21: the exact waist of a beam whose Rayleigh range is 18.9 m, by a factor
+    # 1/√(1 + (f/z_R)²), S. A. Self, Appl. Opt. 22, 658 (1983))
+    assert "pump_lens: w0 14.04 µm" in page.plain and "probe_lens: w0 66.19 µm" in page.plain
     assert "a Gaussian profile (as stated in the laser block)" in page.plain
 
 

@@ -176,7 +176,7 @@ def test_the_schema_names_every_stage_kind_and_parameter_and_nothing_else():
 
     stage = json.loads((PACKAGE.parent / "schemas" / "spec-v1.schema.json").read_text("utf-8"))["$defs"]["stage"]
     assert set(stage["properties"]["kind"]["enum"]) == set(STAGE_KINDS)
-    keys = {"name", "kind", "measured", "branches"} | {p.name for k in STAGE_KINDS.values() for p in k.params} | {
+    keys = {"name", "kind", "measured", "branches", "target"} | {p.name for k in STAGE_KINDS.values() for p in k.params} | {
         key for c in CHECKS.values() for key in c.keys}
     assert set(stage["properties"]) == keys
 

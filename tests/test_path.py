@@ -122,10 +122,12 @@ def test_a_telescope_scales_the_beam(check):
 
 
 def test_a_focus_gives_the_gaussian_spot_and_rayleigh_range(check):
-    # 4 M² λ f / (π D) = 4 × 800e-9 × 0.2 / (π × 0.01) = 20.37 µm; z_R = π w0²/λ = 0.4074 mm.
+    # 4 M² λ f / (π D) = 4 × 800e-9 × 0.2 / (π × 0.01) = 20.37 µm for a collimated beam; the waist at the
+    # laser's output has z_R = π (5 mm)²/λ = 98 m, so Self's closed form (Appl. Opt. 22, 658 (1983))
+    # w0' = w0 / √(1 + (z_R/f)²) differs from it only by 1/√(1 + (f/z_R)²); z_R' = π w0'²/λ = 0.4074 mm.
     r = run(check, "  - {name: lens, kind: focus, focal_length: 200 mm}\n")
-    spot = 4 * 800e-9 * 0.2 / (math.pi * 0.01)
-    assert value(r, "lens", "beam_diameter") == pytest.approx(spot)
+    spot = 4 * 800e-9 * 0.2 / (math.pi * 0.01) / math.sqrt(1 + (0.2 / (math.pi * 0.005**2 / 800e-9)) ** 2)
+    assert value(r, "lens", "beam_diameter") == pytest.approx(spot, rel=1e-9)
     assert cell(r, "rayleigh_range", "lens").value == pytest.approx(math.pi * (spot / 2) ** 2 / 800e-9)
     # and the intensity there follows from the relation table: 2 P_pk / (π w0²)
     peak = 2 * math.sqrt(math.log(2) / math.pi) * 4e-3 / 30e-15
@@ -318,8 +320,11 @@ def test_an_unstated_m2_makes_the_focus_a_bound(check):
         """)
     spot = result.sheet["lens"]["beam_diameter"]
     # the low end: λ and f at -1 %, D at +5 % (their default tolerances); no upper end
-    assert spot.low == pytest.approx(4 * 800e-9 * 0.99 * 0.1 * 0.99 / (math.pi * 5e-3 * 1.05)) and spot.high is None
-    assert spot.value == pytest.approx(4 * 800e-9 * 0.1 / (math.pi * 5e-3))  # typical: M² = 1
+    # (to first order in each: the moves of the propagated beam combine as factors)
+    assert spot.low == pytest.approx(4 * 800e-9 * 0.99 * 0.1 * 0.99 / (math.pi * 5e-3 * 1.05), rel=1e-3)
+    assert spot.high is None
+    # typical: M² = 1 (the exact waist is 1/√(1 + (f/z_R)²) ≈ 1 − 8e-6 of it, z_R = 24.5 m)
+    assert spot.value == pytest.approx(4 * 800e-9 * 0.1 / (math.pi * 5e-3), rel=1e-4)
     assert result.sheet["lens"]["peak_intensity"].low is None  # an upper bound only
     assert any(f.rule == "stage-model" and "M² is not stated" in f.message for f in result.findings)
 

@@ -5,7 +5,7 @@ from pathlib import Path
 
 from jsonschema import Draft202012Validator
 
-from speccheck.physics.quantities import ALIASES, CATEGORICAL, LASER_CHIRP, MEASURED, QUANTITIES
+from speccheck.physics.quantities import ALIASES, CATEGORICAL, LASER_BEAM, LASER_CHIRP, MEASURED, QUANTITIES
 from speccheck.reading.schema import schema, schema_text
 
 ROOT = Path(__file__).resolve().parent.parent
@@ -22,7 +22,7 @@ def test_the_installed_schema_is_the_published_file():
 
 def test_the_block_keys_are_exactly_the_quantity_table():
     block = set(schema()["$defs"]["quantities"]["properties"])
-    assert block == {q.name for q in QUANTITIES} | set(ALIASES) | set(CATEGORICAL) | set(MEASURED) | set(LASER_CHIRP)
+    assert block == {q.name for q in QUANTITIES} | set(ALIASES) | set(CATEGORICAL) | set(MEASURED) | set(LASER_CHIRP) | set(LASER_BEAM)
 
 
 def test_every_example_spec_passes_the_schema_alone_where_it_should():

@@ -20,6 +20,8 @@ def beam_from(cells: dict, old: Beam | None, shape_limit: float | None = None, s
     """The beam a column passes on: its carried values, and (from the laser's column) what its
     pulse's field is built from."""
     values = {q: interval(cells[q]) for q in CARRIED if q in cells}
+    if "pulse_energy" not in cells and "peak_power" in cells:  # a laser stated by its peak power
+        values["peak_power"] = interval(cells["peak_power"])
     if old is not None:
         return replace(old, values=values, stage_gdd=None)
     source = "bandwidth"

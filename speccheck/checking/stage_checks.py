@@ -18,6 +18,8 @@ import math
 from dataclasses import dataclass
 from typing import Callable
 
+from speccheck.checking.beam_checks import clear_aperture, entrance_value, focus_spot
+from speccheck.physics import gaussian_beam as gb
 from speccheck.physics import hazards, materials
 from speccheck.physics.beam import Beam, typical
 from speccheck.physics.stages import STAGE_KINDS, StageKind
@@ -117,8 +119,9 @@ def _manley_rowe(walk, v: Visit, pump, s, i) -> None:
 
 
 def measured_spot(walk, v: Visit) -> None:
-    """A measured focus spot may be larger than the diffraction limit, never smaller; one that
-    is possible replaces the computed spot for the column."""
+    """A measured focus spot may be larger than the diffraction limit, never smaller.  One that is
+    possible is compared by the column with the spot the path carries (``measured-mismatch`` where
+    they disagree: with M² stated, a spot larger than its tolerance allows is a finding too)."""
     name, beam, measured, at, params = v.name, v.beam, v.measured, v.at, v.params
     if not isinstance(measured, dict):
         return
@@ -141,40 +144,20 @@ def measured_spot(walk, v: Visit) -> None:
             f"(1/e² diameter 4 M² λ f / (π D) with f = {params['focal_length'][1] * 1e3:.4g} mm)",
             at + ("measured", key), quantities=(f"{name}.{key}",))
         v.measured = rest
-        return
-    v.beam, v.measured = beam.with_values(beam_diameter=spot), rest
-
-
-def focus_spot(walk, v: Visit) -> None:
-    """The Rayleigh range z_R = π w0² / (M² λ) of the focus (Gaussian-beam optics), and a note
-    when the spot is below the paraxial model's reach."""
-    name, cells, at = v.name, v.cells, v.at
-    w, lam = cells.get("beam_radius"), cells.get("wavelength")
-    if w and lam and w.value and lam.value and w.value < lam.value / math.pi:
-        walk.report.add("non-paraxial-focus",
-                        f"{name}: the 1/e² spot radius {walk.show('beam_radius', w.value, 'µm')} is below "
-                        f"λ/π = {walk.show('beam_radius', lam.value / math.pi, 'µm')}: outside the "
-                        "paraxial Gaussian-beam model, so the spot and intensity are estimates", at, key=True)
-    m2 = cells.get("m2")
-    if not (w and lam and w.value and lam.value):
-        return
-    m = m2.value if m2 and m2.value else 1.0
-    z = math.pi * w.value**2 / (m * lam.value)
-    lo = math.pi * (w.low or w.value) ** 2 / (((m2.high if m2 and m2.high else m)) * (lam.high or lam.value))
-    hi = math.pi * (w.high or w.value) ** 2 / (((m2.low if m2 and m2.low else m)) * (lam.low or lam.value))
-    if m2 is None or w.high is None:  # z_R grows with M² (w0 ∝ M²): unstated, it has no upper bound
-        hi = None
-    cells["rayleigh_range"] = Cell("derived", lo, hi, z, "m", "mm")
 
 
 def self_focusing(walk, v: Visit) -> None:
-    """Self-focusing and B-integral of a material stage, for the beam entering it (the pulse
-    only gets longer inside, so the entrance is the worst case)."""
+    """Self-focusing and B-integral of a material stage, for the pulse entering it (it only gets longer
+    inside, so the entrance is the worst case) and the beam at each depth: the B-integral is the entrance
+    intensity over the Kerr length ∫ w(0)²/w(z)² dz, the collapse distance Marburger's for the
+    entrance's radius with his lens transformation for a converging beam."""
     name, params, cells, incident, at, columns = v.name, v.params, v.cells, v.incident, v.at, v.columns
     material = materials.lookup(params["material"])
     lam = cells.get("wavelength")
     peak = incident.get("peak_power") or cells.get("peak_power")
     intensity = incident.get("peak_intensity") or cells.get("peak_intensity")
+    at_entrance = entrance_value(v, "peak_intensity") if incident.get("peak_intensity") else None
+    g = v.beam.geometry
     if material.n2 is None or not lam or not lam.value:
         return  # the walk carries the B-integral of the columns before
     n0 = float(materials.refractive_index(material, lam.value))
@@ -190,9 +173,17 @@ def self_focusing(walk, v: Visit) -> None:
         where = f"P_cr = 3.77 λ²/(8π n0 n2) = {crit} for {material.label} (n2 {n2} m²/W, " \
                 f"{material.n2_source})"
         radius = incident.get("beam_radius") or cells.get("beam_radius")
+        radius = g.entrance_diameter[1] / 2.0 if g is not None and g.entrance_diameter else \
+            radius.value if radius and radius.value else None
         length = params["thickness"][1]
-        z_f = hazards.collapse_distance(peak.value, p_low, lam.value, n0, radius.value) \
-            if radius and radius.value else None  # no beam size: the collapse distance is not known
+        z_f = hazards.collapse_distance(peak.value, p_low, lam.value, n0, radius) \
+            if radius else None  # no beam size: the collapse distance is not known
+        wavefront = gb.wavefront_radius(g.entrance) if g is not None and g.entrance is not None else math.inf
+        if z_f is not None and math.isfinite(wavefront):  # in the glass the wavefront radius is n times longer
+            z_f = gb.converging_collapse(z_f, wavefront * n0)
+            where += (f"; the collapse distance for its {'converging' if wavefront < 0 else 'diverging'} wavefront "
+                      f"(R = {walk.show('beam_radius', abs(wavefront), 'mm')} at the entrance) by Marburger's "
+                      "lens transformation 1/z_f' = 1/z_f − 1/(n0 R)")
         if (peak.high or peak.value) > p_low and z_f is not None and z_f < length:
             walk.report.add("self-focusing" if solid else "self-focusing-air",
                             f"{name}: the peak power {shown} is above the critical power for self-focusing "
@@ -210,12 +201,15 @@ def self_focusing(walk, v: Visit) -> None:
                             quantities=(f"{name}.peak_power",))
     before = walk.b_total(columns[:-1])
     if intensity and intensity.value:
+        if at_entrance is not None:
+            intensity = intensity._replace(value=at_entrance)
+        # the Kerr length: the entrance intensity over it gives the integral of I(z) through the plate
+        length = gb.kerr_length(g.entrance, params["thickness"][1], n0) if g is not None and g.entrance else \
+            params["thickness"][1]
         n2 = math.sqrt(material.n2[0] * material.n2[1])
-        b = hazards.b_integral(lam.value, n2, intensity.value, params["thickness"][1])
-        cells["b_integral"] = Cell("derived", hazards.b_integral(lam.value, material.n2[0], intensity.value,
-                                                                 params["thickness"][1]),
-                                   hazards.b_integral(lam.value, material.n2[1], intensity.value,
-                                                      params["thickness"][1]), b, "1", "1")
+        b = hazards.b_integral(lam.value, n2, intensity.value, length)
+        cells["b_integral"] = Cell("derived", hazards.b_integral(lam.value, material.n2[0], intensity.value, length),
+                                   hazards.b_integral(lam.value, material.n2[1], intensity.value, length), b, "1", "1")
         total = before + b
         cells["b_integral_total"] = Cell("derived", total, total, total, "1", "1")
         if total > walk.b_limit >= before:
@@ -263,6 +257,8 @@ def optic_damage(walk, v: Visit) -> None:
         walk.report.add(e.rule, e.message, where)
         return
     fluence, tau, lam = (incident.get(q) for q in ("peak_fluence", "pulse_duration", "wavelength"))
+    if fluence and fluence.value:  # on the optic: at its entrance plane, after the stage's distance
+        fluence = fluence._replace(value=entrance_value(v, "peak_fluence"))
     if not fluence or not fluence.value or not rated.typical:
         walk.report.add("target-unknown", f"{name}: the peak fluence on this optic is not determined, so its "
                         "damage threshold cannot be checked", where, key=True)
@@ -295,8 +291,10 @@ CHECKS: dict[str, StageCheck] = {c.id: c for c in (
                ("photon-energy-not-conserved", "manley-rowe-limit", "typical-values-disagree")),
     StageCheck("measured-spot", "incident", measured_spot, "a measured spot against the diffraction limit",
                ("spot-below-diffraction-limit",)),
-    StageCheck("focus-spot", "column", focus_spot, "Rayleigh range and the paraxial limit of a focus",
+    StageCheck("focus-spot", "column", focus_spot, "the paraxial limit of a focus: spot radius and NA",
                ("non-paraxial-focus",)),
+    StageCheck("clear-aperture", "column", clear_aperture, "the power a stage's clear aperture clips",
+               ("aperture-clipping", "target-unknown"), keys=("clear_aperture",)),
     StageCheck("self-focusing", "column", self_focusing, "critical power, collapse distance and B-integral",
                ("self-focusing", "self-focusing-air", "self-focusing-risk", "b-integral")),
     StageCheck("dispersion-range", "column", dispersion_range, "the spectrum inside the material's formula range",
@@ -306,7 +304,7 @@ CHECKS: dict[str, StageCheck] = {c.id: c for c in (
                keys=("damage_threshold",)),
 )}
 
-EVERY_STAGE = ("optic-damage",)  # checks of every stage, whatever its kind
+EVERY_STAGE = ("optic-damage", "clear-aperture")  # checks of every stage, whatever its kind
 
 _unknown = sorted({c for k in STAGE_KINDS.values() for c in k.checks} - set(CHECKS)) or \
     sorted(set(EVERY_STAGE) - set(CHECKS))

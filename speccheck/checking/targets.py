@@ -18,11 +18,17 @@ def finish(walk, columns: list, beam: Beam, target, target_at: tuple, end_at: tu
     last = columns[-1]
     if last != "laser":
         walk.ends.append(last)
-    cells = walk.sheet.get(last, {})
     # what the branch's end is told is placed at its target, or without one at its last stage
     at = target_at if isinstance(target, dict) and target else end_at or target_at
     compensation(walk, last, beam, at)
     strong_field(walk, last, target, at)
+    judge(walk, columns, target, target_at)
+
+
+def judge(walk, columns: list, target, target_at: tuple) -> None:
+    """A target against the last of ``columns`` (a branch's end, or a stage with its own target)."""
+    last = columns[-1]
+    cells = walk.sheet.get(last, {})
     if not isinstance(target, dict):
         return
     for key, raw in target.items():

@@ -16,7 +16,7 @@ from __future__ import annotations
 import math
 from dataclasses import replace
 
-from speccheck.checking import targets, wording
+from speccheck.checking import beam_space, targets, wording
 from speccheck.checking.column import BlockCheck
 from speccheck.checking.failures import NUMERIC_FAILURES, failure as _failure, in_range as _in_range
 from speccheck.checking.laser_pulse import beam_from, chirp_duration, laser_chirp, measured_spectrum
@@ -24,7 +24,7 @@ from speccheck.checking.stage_checks import CHECKS, Visit, checks_of
 from speccheck.physics import hazards, materials
 from speccheck.physics.quantities import BY_NAME
 from speccheck.physics.shapes import DEFAULT_SHAPE, PULSE_SHAPES
-from speccheck.physics.beam import Beam, StageContext, point, scaled
+from speccheck.physics.beam import Beam, StageContext, point, transmit
 from speccheck.physics.model_range import OutOfModelRange
 from speccheck.physics.pulse_stages import StageProblem
 from speccheck.physics.stages import PARAM_TOLERANCES, STAGE_KINDS
@@ -33,13 +33,10 @@ from speccheck.reading.units import choose_unit, format_quantity
 from speccheck.reading.values import Stated, ValueProblem
 from speccheck.records.findings import Cell, FieldProfile
 
-_FIXED_KEYS = {"name", "kind", "measured"}  # keys every stage may have
+_FIXED_KEYS = {"name", "kind", "measured", "target"}  # keys every stage may have
 _STAGE_KEYS = _FIXED_KEYS | {"branches"} | {p.name for k in STAGE_KINDS.values() for p in k.params} | {
     key for c in CHECKS.values() for key in c.keys}
-
-
 _SIGNED = ("s^2", "s^3", "s^4")
-
 
 class PathWalk:
     """The walk along one spec's path; the sheet and the report are filled in as it goes."""
@@ -110,7 +107,7 @@ class PathWalk:
             try:
                 s = parse_angle(label, raw, self.param_tolerance(p.name)) if p.dimension == "angle" else \
                     self.c.values.parse_as(label, raw, p.dimension, self.param_tolerance(p.name),
-                                           signed=p.dimension in _SIGNED or p.zero)
+                                           signed=p.signed or p.dimension in _SIGNED or p.zero)
             except ValueProblem as e:
                 self.report.add(e.rule, e.message, at + (p.name,), quantities=(label,))
                 ok = False
@@ -125,7 +122,7 @@ class PathWalk:
                                 f"{', '.join(f'{c:g}' for c in p.choices)}", at + (p.name,))
                 ok = False
                 continue
-            signed = p.dimension in _SIGNED or p.dimension == "angle"
+            signed = p.signed or p.dimension in _SIGNED or p.dimension == "angle"
             low, typ, high = s.low, s.typical, s.high
             if typ is None:  # a bound or {min, max}: a stage needs both ends, and works on the middle
                 if not (math.isfinite(high) and math.isfinite(low)) or (low <= 0.0 and not signed) or s.text.lstrip()[:1] in "<>≤≥=":
@@ -182,6 +179,7 @@ class PathWalk:
         check = BlockCheck(self.c, name, block, self.tolerance, self.report, paths, inherited, notes=False)
         check.before = self.sheet.get(before, {})  # a limit it broke already is reported there only
         cells = check.run()
+        cells.update(beam_space.cells(beam, self.c.units))
         if beam.stage_gdd is not None:
             cells["stage_gdd"] = _gdd_cell(beam.stage_gdd)
         if beam.pulse is not None:
@@ -236,6 +234,9 @@ class PathWalk:
         except NUMERIC_FAILURES as exc:  # a chirp its field cannot hold: said, and the path goes on without it
             self.report.add("out-of-model-range", f"laser: the field of its chirped pulse cannot be computed "
                             f"({_failure(exc)})", ("laser",), key=True)
+        beam = beam_space.at_laser(self, beam)
+        if self.data.get("path") and "laser" in self.sheet:
+            self.sheet["laser"].update(beam_space.cells(beam, self.c.units))
         if isinstance(self.data.get("path"), list) or isinstance(self.data.get("target"), dict):
             self.walk(self.data.get("path"), ("path",), beam, ["laser"], self.data.get("target"), ("target",))
         self.report.dedupe = False
@@ -289,6 +290,8 @@ class PathWalk:
             visit.cells, visit.columns = cells, columns
             for check in checks_of(kind, "column"):
                 self.run_check(check, visit)
+            if isinstance(stage.get("target"), dict):  # a target of this column's own
+                targets.judge(self, columns, stage["target"], here + ("target",))
             if "b_integral_total" not in cells:  # a stage without a nonlinear phase of its own
                 self.carry_b(columns)
             if kind.splits:
@@ -342,9 +345,7 @@ class PathWalk:
         for k, (branch, spec) in enumerate(branches.items()):
             spec = spec if isinstance(spec, dict) else {}
             share = shares[k]
-            values = {q: scaled(beam.get(q), share) if q in ("pulse_energy", "average_power") else v
-                      for q, v in beam.values.items()}
-            branch_beam = replace(beam, values=values, stage_gdd=None)
+            branch_beam = replace(transmit(beam, share), stage_gdd=None)
             label = str(branch)
             if label in self.sheet:
                 self.report.add("duplicate-name", f"branch {label!r} has the name of another column",

@@ -185,9 +185,11 @@ def _figures(result: FileResult, ctx: _Context, units, show: _Show) -> list[tupl
                    + ".")
         figures.append(("The pulse's field", caption, lambda p, shown=shown: p.field(units, shown)))
     foci = []
-    for c, cells in sheet.items():
-        w0, zr = _positive(cells, "beam_radius"), _positive(cells, "rayleigh_range")
-        if w0 and zr:
+    first = next(iter(sheet.values()), {}).get("beam_radius")
+    for c, cells in sheet.items():  # a column at a waist (its distance to it 0) narrower than the laser's beam
+        w0, zr, ahead = _positive(cells, "beam_radius"), _positive(cells, "rayleigh_range"), cells.get("waist_distance")
+        at_waist = ahead is None or ahead.value is not None and abs(ahead.value) <= 1e-6 * (zr or 1.0)
+        if w0 and zr and at_waist and not (first and first.value and w0 >= 0.5 * first.value):
             foci.append((c, w0, zr))
     foci = foci[:MAX_FOCI]
     if foci:

@@ -2,6 +2,8 @@
 
 from __future__ import annotations
 
+import math
+
 from rich.console import Console
 from rich.table import Table
 from rich.text import Text
@@ -30,6 +32,8 @@ class _Shower:
     def __call__(self, si: float | None, unit: str, bare: bool = False) -> str:
         if si is None:
             return "—"
+        if si in (math.inf, -math.inf):  # a path cell: a flat wavefront
+            return "∞" if si > 0 else "−∞"
         if bare:
             return format_number(si / self._units.factor(unit)) if unit != "1" else format_number(si)
         return format_quantity(self._units, si, unit)
@@ -51,7 +55,8 @@ def _cell_text(cell: Cell, show) -> str:
         if cell.status == "stated" and cell.text[:1] in "<>≤≥={" and cell.low is not None and cell.high is not None:
             # a bound the rest of the spec narrows: what it leaves, beside what was written
             text += f"  → [{_span(show, cell.low, cell.high, unit)}]" + ("" if unit == "1" else f" {pretty_unit(unit)}")
-    elif cell.low is not None and cell.high is not None and cell.high / cell.low <= 1 + 1e-9:
+    elif cell.low is not None and cell.high is not None and \
+            cell.high - cell.low <= 1e-9 * max(abs(cell.low), abs(cell.high)):  # a point (signed cells too)
         text = show(cell.value, unit)
     elif cell.value is None or cell.low is None or cell.high is None:
         text = _span(show, cell.low, cell.high, unit) + ("" if unit == "1" else f" {pretty_unit(unit)}")

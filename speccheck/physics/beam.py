@@ -59,6 +59,7 @@ class Beam:
     laser: LaserPulse | None = None
     pulse: object = None  # physics.pulse.Pulse once a stage has needed the field
     stage_gdd: Value | None = None  # s², what the last stage added
+    geometry: object = None  # physics.beam_geometry.Geometry: q at this plane, once the beam's size is known
 
     def get(self, q: str) -> Value | None:
         return self.values.get(q)
@@ -101,7 +102,9 @@ class Beam:
     def with_pulse(self, made, ctx) -> "Beam":
         """The beam carrying the pulse ``made``: its duration and peak-power factor from the field."""
         n = made.numbers
-        return replace(self, pulse=made).with_values(pulse_duration=n.duration, peak_power_factor=n.peak_factor)
+        # a carried peak power (a laser stated by it, without an energy) does not survive a new profile
+        return replace(self, pulse=made).with_values(pulse_duration=n.duration, peak_power_factor=n.peak_factor,
+                                                     peak_power=None)
 
 
 @dataclass(frozen=True)
@@ -114,6 +117,10 @@ class StageContext:
     note: Callable[[str], None] = field(default=lambda text: None)
 
 
+# What a loss or a gain scales.  The peak power is carried only where the column before knew no
+# pulse energy (a laser stated by its peak power): otherwise each column derives it again.
+ENERGY_LIKE = ("pulse_energy", "average_power", "peak_power")
+
+
 def transmit(beam: Beam, t: Value) -> Beam:
-    return beam.with_values(**{q: scaled(beam.get(q), t) for q in ("pulse_energy", "average_power")
-                               if beam.get(q)})
+    return beam.with_values(**{q: scaled(beam.get(q), t) for q in ENERGY_LIKE if beam.get(q)})

@@ -7,7 +7,7 @@ import math
 from dataclasses import replace
 from typing import Callable
 
-from speccheck.physics.beam import Beam, Value, point, scaled, transmit, typical
+from speccheck.physics.beam import ENERGY_LIKE, Beam, Value, point, scaled, transmit, typical
 
 
 def add_phase(beam: Beam, ctx, terms: Callable, gdd: Value, tod: Value | None = None,
@@ -19,7 +19,7 @@ def add_phase(beam: Beam, ctx, terms: Callable, gdd: Value, tod: Value | None = 
     if made is None:
         ctx.note("the pulse's duration after this stage is not known: the laser block needs a duration or a "
                  "bandwidth, and a wavelength")
-        return beam.with_values(pulse_duration=None)
+        return beam.with_values(pulse_duration=None, peak_power=None)
     spread_tod = (tod[0] - tod[1], tod[2] - tod[1]) if tod is not None else (0.0, 0.0)
     made = made.adding(terms(), (gdd[0] - gdd[1], gdd[2] - gdd[1]), spread_tod,
                        (fod[0] - fod[1], fod[2] - fod[1]) if fod is not None else (0.0, 0.0))
@@ -70,17 +70,15 @@ def harmonic(beam, p, ctx):
     n = int(round(p["order"][1]))
     root = math.sqrt(n)
     eff = p["efficiency"]
-    changes = {q: scaled(beam.get(q), eff) for q in ("pulse_energy", "average_power") if beam.get(q)}
+    changes = {q: scaled(beam.get(q), eff) for q in ENERGY_LIKE if beam.get(q)}
     if beam.get("wavelength"):
         changes["wavelength"] = scaled(beam.get("wavelength"), point(1.0 / n))
     if beam.get("pulse_duration"):  # the field's, where the pump's field is known (below)
         changes["pulse_duration"] = scaled(beam.get("pulse_duration"), point(1.0 / root))
     if beam.get("spectral_bandwidth"):
         changes["spectral_bandwidth"] = scaled(beam.get("spectral_bandwidth"), point(root))
-    if beam.get("beam_diameter"):
-        # the n-th power of a Gaussian profile exp(-2r²/w²) is exp(-2n r²/w²): a 1/e² width w/√n, with
-        # the same Rayleigh range and wavefront (undepleted pump, near field)
-        changes["beam_diameter"] = scaled(beam.get("beam_diameter"), point(1.0 / root))
+    # the n-th power of a Gaussian profile exp(-2r²/w²) is exp(-2n r²/w²): a 1/e² width w/√n with the
+    # pump's q (beam_geometry.follow_wavelength keeps q and scales the effective wavelength by 1/n)
     m2 = beam.get("m2")
     ctx.note(f"the harmonic's beam taken as D/√{n} with the pump's Rayleigh range and wavefront (undepleted "
              "pump, thin crystal, a TEM00 Gaussian beam)" + (
@@ -90,6 +88,8 @@ def harmonic(beam, p, ctx):
     if made is None:
         ctx.note(f"duration and bandwidth of the harmonic taken as τ/√{n} and √{n}·Δν (Gaussian pulse, "
                  "undepleted pump, no group-velocity mismatch: common practice)")
+        if beam.get("peak_power"):  # the energy × efficiency in a pulse √n shorter
+            beam = beam.with_values(peak_power=scaled(beam.get("peak_power"), point(root)))
         return beam
     ctx.note(f"the harmonic's field taken as E(t)^{n} of the pump's field (thin crystal, undepleted pump, no "
              "group-velocity mismatch)")

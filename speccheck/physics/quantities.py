@@ -123,6 +123,9 @@ CATEGORICAL = ("pulse_shape", "beam_profile")
 # path's field reads them, checking/laser_pulse.py).
 LASER_CHIRP = ("chirp", "gdd", "tod")
 
+# Laser-block keys that place the beam's waist (the path's geometry reads them, checking/beam_space.py).
+LASER_BEAM = ("waist_position", "beam_divergence")
+
 # Keys that point to a measured data file next to the spec (reading/measured.py reads them):
 # key -> (the axis-unit key, the unit's dimension key in units.DIMENSION_NAMES).
 MEASURED = {"spectrum": ("wavelength_unit", "m"), "autocorrelation": ("delay_unit", "s")}

@@ -18,11 +18,11 @@ numpy.
 
 from __future__ import annotations
 
-import math
 from dataclasses import dataclass, replace
 from typing import Callable
 
-from speccheck.physics.beam import LaserPulse, Value, inverted, point, scaled, transmit
+from speccheck.physics import beam_geometry as optics
+from speccheck.physics.beam import ENERGY_LIKE, LaserPulse, Value, inverted, scaled, transmit
 from speccheck.physics.pulse_stages import compressor, dispersion, grating_compressor, harmonic, material, prism_compressor
 
 # ------------------------------------------------------------------ stage kinds
@@ -36,6 +36,7 @@ class Param:
     choices: tuple = ()
     fraction: bool = False  # a share of the beam: never more than 1
     zero: bool = False  # 0 is a value it may take (never negative)
+    signed: bool = False  # may be negative (a diverging lens's focal length)
 
 
 @dataclass(frozen=True)
@@ -52,6 +53,9 @@ class StageKind:
     # A kind that ends its path and starts two named ``branches``: the shares of the beam the
     # two branches take, (low, typical, high) each, from the stage's parameters.
     shares: Callable | None = None
+    # The kind's effect on the beam in space (``physics.beam_geometry``: a lens, a plate, a relay), applied
+    # after the free space of the stage's ``distance`` and before ``apply``; None: it changes nothing there.
+    optics: Callable | None = None
 
     @property
     def splits(self) -> bool:
@@ -83,16 +87,15 @@ def _amplifier(beam, p, ctx):
     if p.get("gain") is not None:
         gain = p["gain"]
     elif p.get("output_energy") is not None and beam.get("pulse_energy"):
-        return beam.with_values(pulse_energy=p["output_energy"], average_power=(
+        return beam.with_values(pulse_energy=p["output_energy"], peak_power=None, average_power=(
             scaled(p["output_energy"], beam.get("repetition_rate")) if beam.get("repetition_rate") else None))
     elif p.get("output_power") is not None:
         rate = beam.get("repetition_rate")
-        return beam.with_values(average_power=p["output_power"], pulse_energy=(
+        return beam.with_values(average_power=p["output_power"], peak_power=None, pulse_energy=(
             scaled(p["output_power"], inverted(rate)) if rate else None))
     else:
         return beam
-    return beam.with_values(**{q: scaled(beam.get(q), gain) for q in ("pulse_energy", "average_power")
-                               if beam.get(q)})
+    return beam.with_values(**{q: scaled(beam.get(q), gain) for q in ENERGY_LIKE if beam.get(q)})
 
 
 def _parametric(beam, p, ctx):
@@ -105,11 +108,12 @@ def _parametric(beam, p, ctx):
         rest = _difference(inverted(pump), inverted(idler))
         signal = inverted(rest) if rest else None
     out = signal if p.get("output", "signal") == "signal" else idler
-    changes = {q: scaled(beam.get(q), p["efficiency"]) for q in ("pulse_energy", "average_power") if beam.get(q)}
+    changes = {q: scaled(beam.get(q), p["efficiency"]) for q in ENERGY_LIKE if beam.get(q)}
     changes["wavelength"] = out
     changes["spectral_bandwidth"] = None  # not known from the pump
     ctx.note("the output pulse is taken to be as long as the pump, transform limited, with the pump's "
-             "peak-power factor (common practice for a first estimate)")
+             "peak-power factor, and its beam with the pump's q (wavefront and Rayleigh range; common practice "
+             "for a first estimate)")
     beam = beam.with_values(**changes)
     duration = beam.get("pulse_duration")
     shape = beam.laser.shape if beam.laser else "gaussian"
@@ -126,24 +130,8 @@ def _difference(a: Value, b: Value) -> Value | None:
     return (max(lo, 0.0), typ, hi)
 
 
-def _telescope(beam, p, ctx):
-    if not beam.get("beam_diameter"):
-        return beam
-    return beam.with_values(beam_diameter=scaled(beam.get("beam_diameter"), p["magnification"]))
-
-
-def _focus(beam, p, ctx):
-    d, lam, m2 = beam.get("beam_diameter"), beam.get("wavelength"), beam.get("m2")
-    if m2 is None:  # M² is never below 1 (ISO 11146): unstated, it is 1 … ∞, with 1 as its typical value
-        m2 = (1.0, 1.0, math.inf)
-        ctx.note("M² is not stated, so it is taken as at least 1 (1 for the typical values): the spot is a "
-                 "lower bound and the intensity and fluence at the focus upper bounds; state m2 to make them exact")
-    if not d or not lam:
-        ctx.note("the beam diameter and wavelength before the focus are needed for the spot size")
-        return beam.with_values(beam_diameter=None)
-    # 1/e² spot diameter 4 M² λ f / (π D) (Gaussian-beam optics)
-    spot = scaled(scaled(scaled(m2, lam), p["focal_length"]), inverted(scaled(d, point(math.pi / 4.0))))
-    return beam.with_values(beam_diameter=spot)
+def _unchanged(beam, p, ctx):
+    return beam
 
 
 def _splitter(beam, p, ctx):
@@ -173,6 +161,10 @@ PARAM_TOLERANCES: dict[str, tuple[float, str]] = {
     "insertion": (0.05, "a prism's insertion depth: about 5% (common practice)"),
     "magnification": (0.01, "a telescope's focal-length ratio: about 1% (common practice)"),
     "divide_by": (0.0, "a whole number of pulses: exact"),
+    "distance": (0.01, "a distance measured on the table: about 1% (common practice)"),
+    "clear_aperture": (0.02, "an optic's clear aperture from its drawing: about 2% (common practice)"),
+    "waist_position": (0.1, "a laser's waist position from a caustic fit: about 10% (common practice)"),
+    "beam_divergence": (0.05, "a far-field divergence measurement: about 5% (common practice)"),
     "order": (0.0, "a harmonic order: exact"),
     "gain": (0.05, "an amplifier's gain: about 5% (common practice)"),
     "output_energy": (0.05, "as a pulse energy: about 5% (common practice)"),
@@ -182,7 +174,22 @@ PARAM_TOLERANCES: dict[str, tuple[float, str]] = {
 }
 
 
-STAGE_KINDS: dict[str, StageKind] = {k.name: k for k in (
+_TELESCOPE = (Param("magnification", "1", required=True), Param("focal_length", "m", signed=True))
+# every stage sits a distance after the plane of the column before (free space, n = 1)
+_DISTANCE = Param("distance", "m", default=0.0)
+
+
+def _placed(kind: StageKind) -> StageKind:
+    """The kind as the walk applies it: free space, then its optics, then its effect on the pulse."""
+    def run(beam, p, ctx):
+        beam = optics.travel(beam, p["distance"], ctx)
+        if kind.optics is not None:
+            beam = kind.optics(beam, p, ctx)
+        return optics.follow_wavelength(beam, kind.apply(beam, p, ctx))
+    return replace(kind, params=kind.params + (_DISTANCE,), apply=run)
+
+
+STAGE_KINDS: dict[str, StageKind] = {k.name: _placed(k) for k in (
     StageKind("optic", (_T,), _optic, "a mirror, lens or window that loses power (transmission)"),
     StageKind("attenuator", (Param("transmission", "1", required=True, fraction=True),), _optic,
               "a deliberate loss: E and P times the transmission"),
@@ -197,7 +204,8 @@ STAGE_KINDS: dict[str, StageKind] = {k.name: k for k in (
     StageKind("material", (Param("material", "material_name", required=True), Param("thickness", "m", required=True),
                            _T),
               material, "a thickness of a named glass: the exact phase n(ω)ωL/c of its Sellmeier equation",
-              "the Sellmeier equation, to all orders (GDD = GVD × L shown)", checks=("self-focusing", "dispersion-range")),
+              "the Sellmeier equation, to all orders (GDD = GVD × L shown); in space its reduced thickness L/n",
+              checks=("self-focusing", "dispersion-range"), optics=optics.plate),
     StageKind("compressor", (Param("gdd", "s^2"), Param("tod", "s^3"), Param("fod", "s^4"), _T), compressor,
               "a compressor given by its dispersion: GDD, TOD, FOD and a transmission"),
     StageKind("grating_compressor", (Param("groove_density", "1/m", required=True),
@@ -219,15 +227,22 @@ STAGE_KINDS: dict[str, StageKind] = {k.name: k for k in (
               "pump → signal + idler: 1/λp = 1/λs + 1/λi, energy × efficiency",
               "photon-energy conservation", one_of=("signal_wavelength", "idler_wavelength"),
               checks=("photon-energy",)),
-    StageKind("telescope", (Param("magnification", "1", required=True),), _telescope,
-              "beam diameter × magnification"),
-    StageKind("beam_expander", (Param("magnification", "1", required=True),), _telescope,
-              "beam diameter × magnification"),
+    StageKind("telescope", _TELESCOPE, _unchanged,
+              "two lenses a distance f1 + f2 apart: beam diameter × magnification, the entrance imaged onto the exit",
+              "ABCD matrices (Kogelnik and Li 1966)", optics=optics.telescope),
+    StageKind("beam_expander", _TELESCOPE, _unchanged,
+              "two lenses a distance f1 + f2 apart: beam diameter × magnification, the entrance imaged onto the exit",
+              "ABCD matrices (Kogelnik and Li 1966)", optics=optics.telescope),
     StageKind("splitter", (Param("ratio", "1", required=True, fraction=True),), _splitter,
               "divides the beam into two named branches (pump–probe)", shares=_splitter_shares),
-    StageKind("focus", (Param("focal_length", "m", required=True),), _focus,
-              "focusing optic: 1/e² spot diameter 4 M² λ f / (π D)",
-              "Gaussian-beam optics (paraxial)", checks=("measured-spot", "focus-spot")),
+    StageKind("focus", (Param("focal_length", "m", required=True),), _unchanged,
+              "focusing optic; its column sits at the beam's waist after it (1/e² diameter 4 M² λ f / (π D) for a "
+              "collimated beam)", "Gaussian-beam optics (paraxial; ABCD matrices)",
+              checks=("measured-spot", "focus-spot"), optics=optics.focus),
+    StageKind("lens", (Param("focal_length", "m", required=True, signed=True),), _unchanged,
+              "a thin lens, focal length positive or negative; its column shows the beam just after it",
+              "ABCD matrices (Kogelnik and Li 1966)", checks=("focus-spot",), optics=optics.lens),
+    StageKind("sample", (), _unchanged, "a plane in the beam that changes nothing (a target, a measurement)"),
 )}
 
 _untoleranced = sorted({p.name for k in STAGE_KINDS.values() for p in k.params if p.dimension not in

@@ -239,8 +239,26 @@ _RULES = (
          "The 1/e² spot diameter of a focused Gaussian beam is at least 4 M² λ f / (π D) (Gaussian-beam "
          "optics); a smaller stated spot is impossible for the stated optics."),
     Rule("non-paraxial-focus", "note", "a focus tighter than the paraxial Gaussian model allows",
-         "A 1/e² spot radius below λ/π is outside the paraxial approximation: the spot size and the "
-         "intensity there are estimates only."),
+         "A 1/e² spot radius below λ/π, or a focusing numerical aperture above about 0.4 (the far-field half "
+         "angle M²λ/(π w0) of the waist after a `focus` or `lens` stage; common practice), is outside the "
+         "paraxial approximation: the spot size and the intensity there are estimates only.",
+         "{name: objective, kind: focus, focal_length: 4 mm}  # on an 8 mm beam: NA ≈ 0.7",
+         "{name: lens, kind: focus, focal_length: 100 mm}"),
+    Rule("aperture-clipping", "warning", "a clear aperture that clips more than 1 % of the beam",
+         "A stage's `clear_aperture` (its diameter) is compared with the 1/e² diameter of the beam on it, "
+         "after the stage's `distance`. A Gaussian beam of 1/e² radius w through a circular aperture of "
+         "radius a loses exp(−2a²/w²) of its power: more than 1 % when the aperture is below about 1.5× "
+         "the beam's 1/e² diameter. The loss is not subtracted; the clipped edge also diffracts.",
+         "{name: window, kind: material, material: fused_silica, thickness: 3 mm, clear_aperture: 10 mm}"
+         "  # on an 8 mm beam",
+         "{name: window, kind: material, material: fused_silica, thickness: 3 mm, clear_aperture: 20 mm}"),
+    Rule("beam-geometry-impossible", "error", "a laser beam's waist or divergence no Gaussian beam can have",
+         "With `beam_diameter` at the laser's output plane and M², a `waist_position` z needs "
+         "w² ≥ 2 M²λ|z|/π (no beam is narrower that far from its waist), and a full `beam_divergence` θ "
+         "needs θ ≥ 4 M²λ/(π D) (the diffraction limit of the diameter). The beam is then taken at its "
+         "waist at the output plane.",
+         "laser: {wavelength: 1030 nm, beam_diameter: 0.2 mm, waist_position: 5 m}",
+         "laser: {wavelength: 1030 nm, beam_diameter: 2 mm, waist_position: -0.5 m}"),
     Rule("strong-field-figures", "note", "ponderomotive energy, Keldysh parameter and HHG cutoff at the target",
          "U_p = e² E² / (4 m_e ω²) (≈ 9.33e-14 I[W/cm²] λ²[µm²] eV); γ = √(I_p / 2U_p) (Keldysh 1965); "
          "cutoff I_p + 3.17 U_p (three-step model, Corkum 1993); ionization energies from the NIST "
@@ -335,7 +353,12 @@ _SOURCES = {
     "optic-damage-margin": "common practice (a safety factor of 2)",
     "damage-rating-not-transferable": "common practice",
     "spot-below-diffraction-limit": "Gaussian-beam optics (paraxial): 1/e² spot diameter 4 M² λ f / (π D)",
-    "non-paraxial-focus": "Gaussian-beam optics: the paraxial approximation needs w0 ≫ λ/π",
+    "non-paraxial-focus": "Gaussian-beam optics: the paraxial approximation needs w0 ≫ λ/π; NA ≈ 0.4: common "
+                          "practice",
+    "aperture-clipping": "the Gaussian profile integrated over a disc (A. E. Siegman, Lasers, ch. 17); 1 %: "
+                         "common practice",
+    "beam-geometry-impossible": "Gaussian-beam optics: w(z)² = w0² + (M²λz/(π w0))² (H. Kogelnik and T. Li, "
+                                "Appl. Opt. 5, 1550 (1966); the embedded Gaussian, A. E. Siegman, Lasers)",
     "strong-field-figures": "L. V. Keldysh, Sov. Phys. JETP 20, 1307 (1965); P. B. Corkum, Phys. Rev. Lett. 71, "
                             "1994 (1993); ionization energies: NIST Atomic Spectra Database (from memory)",
     "relativistic-intensity": "a0 = e E / (m_e ω c) ≈ 0.855 λ[µm] √(I / 10^18 W/cm²) (published rule)",

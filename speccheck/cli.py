@@ -51,6 +51,7 @@ def _parser() -> argparse.ArgumentParser:
     c.add_argument("--no-color", action="store_true", help="never colour the output (also: NO_COLOR=1)")
     c.add_argument("--color", action="store_true", help="colour the output even when it is not a terminal")
     c.add_argument("--no-sheet", action="store_true", help="human format: findings only, no sheet")
+    _set_option(c)
     c.add_argument("--jobs", "-j", type=_positive_int, default=1, metavar="N",
                    help="check the files in N processes (the report is the same; gains only with more cores)")
     limits = c.add_argument_group("input limits (each file that exceeds one gets an input-limit finding)")
@@ -72,6 +73,30 @@ def _parser() -> argparse.ArgumentParser:
     n.add_argument("--schema", metavar="PATH-OR-URL",
                    help="add the editor modeline '# yaml-language-server: $schema=PATH-OR-URL'")
     return p
+
+
+def _set_option(p) -> None:
+    p.add_argument("--set", action="append", type=_setting, default=[], metavar="INPUT=VALUE", dest="settings",
+                   help="what if: check with INPUT (laser.<quantity>, <stage>.<parameter>, <operating point>."
+                   "<quantity>) set to VALUE, written as in a spec ('3 mJ', '>= 20 W'); the file is not changed; "
+                   "repeatable")
+
+
+def _setting(text: str) -> tuple[str, str]:
+    name, eq, value = text.partition("=")
+    name, value = name.strip(), value.strip()
+    if not eq or not name or not value or "." not in name.strip("."):
+        raise argparse.ArgumentTypeError(f"expected INPUT=VALUE such as laser.pulse_energy='3 mJ' or "
+                                         f"lens.focal_length='100 mm', got {text!r}")
+    return name, value
+
+
+def _set_problems(results, stderr) -> bool:
+    """Write what a --set could not do to standard error; True if there was any (exit 2)."""
+    bad = [(r.path, p) for r in results for p in r.set_problems]
+    for path, problem in bad:
+        stderr.write(f"speccheck: --set: {files.printable(path)}: {files.printable(problem)}\n")
+    return bool(bad)
 
 
 def _positive_int(text: str) -> int:
@@ -162,11 +187,15 @@ def _check(args, stdout, stderr, stdin=None) -> int:
     from speccheck import batch as batches
 
     done = batches.check_files(expansion.files, lambda reader: Checker(
-        units, Options(limits=limits, tolerance=config.tolerance, tolerances=config.tolerances), read=reader),
+        units, Options(limits=limits, tolerance=config.tolerance, tolerances=config.tolerances,
+                       settings=tuple(args.settings), remedies="all" if args.review or args.format == "review"
+                       else "unmet"), read=reader),
         limits.max_bytes, stdin, args.jobs)
     for message in done.messages:
         stderr.write(message)
     results = done.results
+    if _set_problems(results, stderr):
+        return 2
     io_failure = bool(expansion.unmatched) or done.failed
     results = cfg.apply(results, config)
     fail_on = _fail_level(args, config)

@@ -30,6 +30,8 @@ class Options:
     limits: Limits = Limits()
     tolerance: float | None = None  # the project configuration's global tolerance
     tolerances: Mapping[str, float] = field(default_factory=dict)  # …and its per-quantity ones
+    settings: tuple[tuple[str, str], ...] = ()  # (INPUT, VALUE) of each --set, in order
+    remedies: str = "unmet"  # what would meet a target: for the "unmet" ones, "all" (a review), or "none"
 
 
 class Checker:
@@ -48,6 +50,14 @@ class Checker:
     def check_text(self, text: str | bytes, path: str) -> FileResult:
         self.data_files.new_document()
         doc = load(text, self.options.limits)
+        settings: list[str] = []
+        if self.options.settings and not doc.problems:
+            from speccheck.checking import overrides
+
+            try:
+                settings = overrides.apply(self, doc, self.options.settings)
+            except overrides.SettingProblem as e:
+                return FileResult(path, (), set_problems=(str(e),))
         report = Report(path, doc)
         for p in doc.problems:
             report.add(p.rule, p.message, line=p.line, column=p.column)
@@ -77,7 +87,7 @@ class Checker:
                 self._safety(data, sheet, report)
         findings = tuple(sorted(report.findings, key=Finding.sort_key))
         points = tuple(name for name in sheet if name in report.points)
-        return FileResult(path, findings, sheet, title, shape, shape_stated, ends, points)
+        return FileResult(path, findings, sheet, title, shape, shape_stated, ends, points, tuple(settings))
 
     def _safety(self, data: dict, sheet: dict, report: Report) -> None:
         from speccheck.checking import safety
@@ -145,6 +155,7 @@ class Checker:
             if limit.typical is not None and limit.low == limit.high:
                 continue  # a plain nominal value of the laser block: overriding it is the point
             line = report.doc.where(("laser", key))[0]
+            line = f"line {line}" if line else "set on the command line"
             if mine.low > limit.high:
                 side, bound = "above the sheet's maximum", limit.high
             elif mine.high < limit.low:
@@ -153,7 +164,7 @@ class Checker:
                 continue
             report.add("operating-point-beyond-limit",
                        f"operating point {name!r}: {key} {mine.text} is {side} "
-                       f"{check.show(limit.quantity, bound, limit.unit)} (laser.{key}: {limit.text}, line {line})",
+                       f"{check.show(limit.quantity, bound, limit.unit)} (laser.{key}: {limit.text}, {line})",
                        ("operating_points", i, key), quantities=(f"{name}.{key}", f"laser.{key}"))
 
     def _tolerance(self, data: dict, report: Report) -> Tolerances:

@@ -17,7 +17,7 @@ import sys
 from pathlib import Path
 
 from speccheck._version import __version__
-from speccheck import files
+from speccheck import files, what_if
 from speccheck.reading.loader import MAX_DEPTH, Limits
 
 MAX_FILE_SIZE = 1024 * 1024 * 1024  # the largest --max-file-size: a spec is read whole into memory
@@ -51,7 +51,7 @@ def _parser() -> argparse.ArgumentParser:
     c.add_argument("--no-color", action="store_true", help="never colour the output (also: NO_COLOR=1)")
     c.add_argument("--color", action="store_true", help="colour the output even when it is not a terminal")
     c.add_argument("--no-sheet", action="store_true", help="human format: findings only, no sheet")
-    _set_option(c)
+    what_if.set_option(c)
     c.add_argument("--jobs", "-j", type=_positive_int, default=1, metavar="N",
                    help="check the files in N processes (the report is the same; gains only with more cores)")
     limits = c.add_argument_group("input limits (each file that exceeds one gets an input-limit finding)")
@@ -61,6 +61,7 @@ def _parser() -> argparse.ArgumentParser:
                         help=f"most YAML nodes in a document, aliases expanded (default {Limits.max_nodes})")
     limits.add_argument("--max-depth", type=_positive_int, default=Limits.max_depth, metavar="N",
                         help=f"deepest nesting of mappings and lists (default {Limits.max_depth})")
+    what_if.add_solve(sub)
     sub.add_parser("rules", help="list every rule with its id, severity and summary")
     e = sub.add_parser("explain", help="explain a rule: the physics, the source, examples")
     e.add_argument("rule", metavar="RULE-ID")
@@ -73,30 +74,6 @@ def _parser() -> argparse.ArgumentParser:
     n.add_argument("--schema", metavar="PATH-OR-URL",
                    help="add the editor modeline '# yaml-language-server: $schema=PATH-OR-URL'")
     return p
-
-
-def _set_option(p) -> None:
-    p.add_argument("--set", action="append", type=_setting, default=[], metavar="INPUT=VALUE", dest="settings",
-                   help="what if: check with INPUT (laser.<quantity>, <stage>.<parameter>, <operating point>."
-                   "<quantity>) set to VALUE, written as in a spec ('3 mJ', '>= 20 W'); the file is not changed; "
-                   "repeatable")
-
-
-def _setting(text: str) -> tuple[str, str]:
-    name, eq, value = text.partition("=")
-    name, value = name.strip(), value.strip()
-    if not eq or not name or not value or "." not in name.strip("."):
-        raise argparse.ArgumentTypeError(f"expected INPUT=VALUE such as laser.pulse_energy='3 mJ' or "
-                                         f"lens.focal_length='100 mm', got {text!r}")
-    return name, value
-
-
-def _set_problems(results, stderr) -> bool:
-    """Write what a --set could not do to standard error; True if there was any (exit 2)."""
-    bad = [(r.path, p) for r in results for p in r.set_problems]
-    for path, problem in bad:
-        stderr.write(f"speccheck: --set: {files.printable(path)}: {files.printable(problem)}\n")
-    return bool(bad)
 
 
 def _positive_int(text: str) -> int:
@@ -194,7 +171,7 @@ def _check(args, stdout, stderr, stdin=None) -> int:
     for message in done.messages:
         stderr.write(message)
     results = done.results
-    if _set_problems(results, stderr):
+    if what_if.set_problems(results, stderr):
         return 2
     io_failure = bool(expansion.unmatched) or done.failed
     results = cfg.apply(results, config)
@@ -335,6 +312,8 @@ def run(argv: list[str], stdout=None, stderr=None, stdin=None) -> int:
         return 0 if exc.code in (0, None) else 2
     if args.command == "check":
         return _check(args, stdout, stderr, stdin)
+    if args.command == "solve":
+        return what_if.solve(args, stdout, stderr, stdin, _config(args, stderr))
     if args.command == "rules":
         return _rules(stdout)
     if args.command == "explain":

@@ -49,15 +49,36 @@ class Checker:
 
     def check_text(self, text: str | bytes, path: str) -> FileResult:
         self.data_files.new_document()
-        doc = load(text, self.options.limits)
-        settings: list[str] = []
-        if self.options.settings and not doc.problems:
-            from speccheck.checking import overrides
+        doc, settings, problem = self._prepared(text)
+        if problem:
+            return FileResult(path, (), set_problems=(problem,))
+        return self._check(doc, path, settings)
 
-            try:
-                settings = overrides.apply(self, doc, self.options.settings)
-            except overrides.SettingProblem as e:
-                return FileResult(path, (), set_problems=(str(e),))
+    def solve(self, text: str | bytes, path: str, name: str):
+        """(the check of the document, ``solving.Solution``: the range of the input ``name`` over
+        which every target is met and no error is reported); raises ``overrides.SettingProblem``."""
+        from speccheck.checking import overrides, solving
+
+        self.data_files.new_document()
+        doc, settings, problem = self._prepared(text)
+        if problem:
+            raise overrides.SettingProblem(problem)
+        result = self._check(doc, path, settings, remedies=False)
+        return result, solving.solve(self, doc, name, result)
+
+    def _prepared(self, text) -> tuple:
+        """The document read, the --set values applied: (doc, what was set, a problem or None)."""
+        doc = load(text, self.options.limits)
+        if not self.options.settings or doc.problems:
+            return doc, [], None
+        from speccheck.checking import overrides
+
+        try:
+            return doc, overrides.apply(self, doc, self.options.settings), None
+        except overrides.SettingProblem as e:
+            return doc, [], str(e)
+
+    def _check(self, doc, path: str, settings: list, remedies: bool = True) -> FileResult:
         report = Report(path, doc)
         for p in doc.problems:
             report.add(p.rule, p.message, line=p.line, column=p.column)
@@ -82,12 +103,37 @@ class Checker:
                 if isinstance(data.get("path"), list) or isinstance(data.get("target"), dict):
                     from speccheck.checking.walker import check_path
 
-                    ends = tuple(check_path(self, data, tolerance, report, sheet))
+                    outcomes: list = []
+                    ends = tuple(check_path(self, data, tolerance, report, sheet, outcomes))
+                    if remedies and self._wants_remedies(outcomes):
+                        from speccheck.checking import remedies
+
+                        report.findings = remedies.attach(self, doc, outcomes, report.findings,
+                                                          self.options.remedies == "all")
             if sheet:
                 self._safety(data, sheet, report)
         findings = tuple(sorted(report.findings, key=Finding.sort_key))
         points = tuple(name for name in sheet if name in report.points)
         return FileResult(path, findings, sheet, title, shape, shape_stated, ends, points, tuple(settings))
+
+    def _wants_remedies(self, outcomes: list) -> bool:
+        mode = self.options.remedies
+        return mode == "all" and bool(outcomes) or mode == "unmet" and any(o.verdict == "not-met" for o in outcomes)
+
+    def rerun(self, doc, data: dict) -> tuple[dict, list, list]:
+        """The laser column and the path of ``data`` (the document with an input changed) checked
+        again, for the remedies: (sheet, the targets' outcomes, findings).  ``doc`` gives places."""
+        from speccheck.checking.walker import check_path
+
+        report = Report("", doc)
+        tolerance = self._tolerance(data, report)
+        sheet: dict = {}
+        outcomes: list = []
+        block = data.get("laser")
+        if isinstance(block, dict):
+            sheet["laser"] = BlockCheck(self, "laser", block, tolerance, report, notes=False).run()
+            check_path(self, data, tolerance, report, sheet, outcomes)
+        return sheet, outcomes, report.findings
 
     def _safety(self, data: dict, sheet: dict, report: Report) -> None:
         from speccheck.checking import safety

@@ -26,12 +26,12 @@ from speccheck.checking.engine import evaluate, network_for
 from speccheck.physics.beam import CARRIED
 from speccheck.physics.quantities import BY_NAME, CATEGORICAL, defaults_for
 from speccheck.physics.shapes import BEAM_PROFILES, DEFAULT_PROFILE, DEFAULT_SHAPE, PULSE_SHAPES
-from speccheck.physics.stages import STAGE_KINDS
+from speccheck.physics.stages import PARAM_TOLERANCES, STAGE_KINDS
 from speccheck.reading.angles import parse_angle
 from speccheck.reading.loader import Limits, load
 from speccheck.reading.values import ValueProblem
 
-_SIGNED = ("s^2", "s^3", "s^4")
+SIGNED = ("s^2", "s^3", "s^4")  # dimensions of parameters that may be negative (a GDD, TOD, FOD)
 _UNITS = {"angle": "rad"}  # the SI unit of a parameter dimension that is not a unit text
 
 
@@ -105,7 +105,7 @@ def _stages(checker, stages, at: tuple, out: dict) -> None:
                 out[label] = Input(label, name, p.name, where, "text", "", p.name in stage,
                                    exact=bool(p.choices))
                 continue
-            signed = p.dimension in _SIGNED
+            signed = p.dimension in SIGNED
             raw = stage.get(p.name)
             value, unit = (p.default, p.dimension) if raw is None else (None, p.dimension)
             if raw is not None:
@@ -115,10 +115,11 @@ def _stages(checker, stages, at: tuple, out: dict) -> None:
                     value, unit = s.typical, s.unit
                 except ValueProblem:
                     pass
+            shown = "deg" if p.dimension == "angle" else "%" if p.fraction else unit
+            exact = PARAM_TOLERANCES.get(p.name, (0.05,))[0] == 0.0  # exact by its nature: a whole number
             out[label] = Input(label, name, p.name, where, "angle" if p.dimension == "angle" else "number",
-                               _UNITS.get(p.dimension, p.dimension), raw is not None, value,
-                               "deg" if p.dimension == "angle" else unit, signed or p.dimension == "angle",
-                               1.0 if p.fraction else math.inf, p.name == "divide_by")
+                               _UNITS.get(p.dimension, p.dimension), raw is not None, value, shown,
+                               signed or p.dimension == "angle", 1.0 if p.fraction else math.inf, exact)
         branches = stage.get("branches")
         if isinstance(branches, dict):
             for branch, spec in branches.items():

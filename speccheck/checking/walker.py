@@ -52,6 +52,7 @@ class PathWalk:
         self.categorical = {k: laser[k] for k in ("pulse_shape", "beam_profile") if isinstance(laser.get(k), str)}
         self.context = None
         self.ends: list[str] = []  # the last column of each branch, in the order walked
+        self.outcomes: list = []  # each target's verdict (targets.Outcome), for the remedies
         defaults = data.get("defaults") if isinstance(data.get("defaults"), dict) else {}
         self.b_limit = self.setting(defaults, "b_integral_limit", hazards.B_INTEGRAL_LIMIT)
         self.safety_factor = self.setting(defaults, "damage_safety_factor", hazards.DAMAGE_SAFETY_FACTOR)
@@ -363,9 +364,12 @@ def _failure(exc: Exception) -> str:
     return "a number outside a formula's domain"
 
 
-def check_path(checker, data: dict, tolerance: float, report, sheet: dict) -> list[str]:
-    """Check the beam path into ``sheet``; return the column that ends each branch."""
+def check_path(checker, data: dict, tolerance: float, report, sheet: dict, outcomes: list | None = None) -> list[str]:
+    """Check the beam path into ``sheet``; return the column that ends each branch (and put each
+    target's verdict in ``outcomes``)."""
     walk = PathWalk(checker, data, tolerance, report, sheet)
     walk.run()
+    if outcomes is not None:
+        outcomes.extend(walk.outcomes)
     return walk.ends
 

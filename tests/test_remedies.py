@@ -158,7 +158,7 @@ def test_a_target_no_single_input_can_meet_says_so(checker):
     # no bandwidth within 1/100 … 100 times the stated one does without leaving what the field can hold
     assert f.remedies and not any(r.reachable for r in f.remedies)
     assert all(r.low is None and r.high is None for r in f.remedies)
-    assert "No value of a single input meets it" in f.message
+    assert "No value of a single input was found to meet it" in f.message
 
 
 def test_a_target_the_numbers_do_not_determine_names_what_would(checker):

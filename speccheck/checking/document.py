@@ -120,13 +120,18 @@ class Checker:
         mode = self.options.remedies
         return mode == "all" and bool(outcomes) or mode == "unmet" and any(o.verdict == "not-met" for o in outcomes)
 
-    def rerun(self, doc, data: dict) -> tuple[dict, list, list]:
+    def rerun(self, doc, data: dict, nominal: bool = False) -> tuple[dict, list, list]:
         """The laser column and the path of ``data`` (the document with an input changed) checked
-        again, for the remedies: (sheet, the targets' outcomes, findings).  ``doc`` gives places."""
+        again, for the remedies: (sheet, the targets' outcomes, findings).  ``doc`` gives places.
+        ``nominal``: every plain value exact (no default tolerance), so that each interval is the
+        nominal value alone and the pulse's field is computed once per column, not per corner;
+        the nominal values are the same, and values that agree only within tolerances conflict."""
         from speccheck.checking.walker import check_path
 
         report = Report("", doc)
         tolerance = self._tolerance(data, report)
+        if nominal:
+            tolerance = Tolerances({}, {}, 0.0, 0.0, tolerance.margin)
         sheet: dict = {}
         outcomes: list = []
         block = data.get("laser")

@@ -8,10 +8,15 @@ nominal value meets it.  Re-checking is what makes this generic: what an input d
 moves with it (``overrides.moved``: at a fixed rate a new energy moves the power), every
 stage applies its own physics, and nothing here knows a stage kind or a parameter.
 
-Positive inputs are searched in log space from 1/100 to 100 times their value (a share of
-the beam up to 1, a whole number from 1 and rounded), signed ones (a GDD) over ±10 times
-theirs.  The laser's wavelength (``quantities.CARRIER``) is not offered.  A met range that reaches the end of the search is open (None) on that side.  A
-defaulted parameter is offered only where a value it can take meets the target.  The
+Positive inputs are searched in log space from 1/30 to 30 times their value (a share of
+the beam up to 1, a whole number from 1 and rounded), signed ones (a GDD) over ±4 times
+theirs.  A value at which the check reports an error at the input itself (an M² below 1,
+a transmission above 100 %, a value the rest of the spec contradicts) is outside its
+domain and does not meet the target.  The laser's wavelength (``quantities.CARRIER``) is not offered.  A met range that reaches the end of the search is open (None) on that side.  A
+defaulted parameter is offered only where a value it can take meets the target.
+``reachable: false`` means that no value was found in the range searched: a grid of the
+range and the secant steps; a met window narrower than the grid's step (a pulse whose
+width jumps as a side lobe crosses half maximum) can be missed.  The
 re-checks are bounded per target (``BUDGET``) and shared between targets.
 """
 
@@ -30,21 +35,31 @@ from speccheck.physics.shapes import BEAM_PROFILES, DEFAULT_PROFILE, DEFAULT_SHA
 from speccheck.reading.units import format_number
 from speccheck.records.findings import Remedy
 
-SPAN = math.log(1e2)  # positive inputs: searched from 1/100 to 100 times their value
-SIGNED_SPAN = 10.0  # signed inputs: ± this many times their size
-BUDGET = 120  # re-checks per target, at most, shared out evenly over the inputs it depends on
+SPAN = math.log(30.0)  # positive inputs: searched from 1/30 to 30 times their value
+SIGNED_SPAN = 4.0  # signed inputs: ± this many times their size
+BUDGET = 96  # re-checks per target, at most, shared out evenly over the inputs it depends on
 PER_INPUT = 24  # …and at most this many per input
+DOCUMENT_BUDGET = 120  # …and per document, over all its targets
 SHOWN = 3  # remedies said in words (the smallest changes)
+UNSETTLED = "unsettled"  # the budget ran out before the search ended
 
 
 class Rechecks:
     """The document checked again with one input changed, each (input, value) once."""
 
-    def __init__(self, checker, doc) -> None:
-        self.c, self.doc, self.data = checker, doc, doc.data
+    def __init__(self, checker, doc, nominal: bool = True) -> None:
+        self.c, self.doc, self.data, self.nominal = checker, doc, doc.data, nominal
         self.table = overrides.inputs(checker, doc.data)
         self.done: dict = {}
         self.moves: dict = {}
+
+    def base(self, at: tuple) -> float | None:
+        """The target's value in a re-check of the document as it is (the reference of a search:
+        a nominal re-check may differ from the check's own value in the last digits)."""
+        if "base" not in self.moves:
+            _, outcomes, _ = self.c.rerun(self.doc, self.data, self.nominal)
+            self.moves["base"] = {o.at: o.value for o in outcomes}
+        return self.moves["base"].get(at)
 
     def with_value(self, inp: overrides.Input, x: float) -> dict:
         unit = "" if inp.dimension == "1" else " " + inp.dimension
@@ -56,15 +71,22 @@ class Rechecks:
         return overrides.replaced(self.data, inp.at, raw, self.moves[inp.name])
 
     def run(self, inp: overrides.Input, x: float):
-        """(value of each target by its place, whether any error was reported) with ``inp`` at x."""
+        """(value of each target by its place, whether any error was reported) with ``inp`` at x; no
+        target has a value where an error is reported at the input itself (outside its domain)."""
         key = (inp.name, x)
         if key not in self.done:
+            if len(self.done) >= DOCUMENT_BUDGET:
+                raise seek.Budget
             try:
                 with warnings.catch_warnings():  # far from the spec's values a formula may leave its domain
                     warnings.simplefilter("ignore")
-                    sheet, outcomes, findings = self.c.rerun(self.doc, self.with_value(inp, x))
-                self.done[key] = ({o.at: o.value for o in outcomes},
-                                  any(f.severity == "error" for f in findings))
+                    sheet, outcomes, findings = self.c.rerun(self.doc, self.with_value(inp, x), self.nominal)
+                places = {self.doc.where(inp.at), self.doc.where(inp.at, key=True)}
+                errors = [f for f in findings if f.severity == "error"]
+                # (exact values conflict where they agree only within tolerances: not a domain's end)
+                outside = any((f.line, f.column) in places for f in errors
+                              if not f.rule.startswith("target-") and not (self.nominal and f.rule == "relation-conflict"))
+                self.done[key] = ({} if outside else {o.at: o.value for o in outcomes}, bool(errors))
             except (ArithmeticError, ValueError):
                 self.done[key] = ({}, True)
         return self.done[key]
@@ -117,7 +139,9 @@ def remedy_for(rechecks: Rechecks, inp: overrides.Input, at: tuple, need, value:
 
     found = seek.seek(g, t0, math.log(value), lo, hi, band, step, min(budget, PER_INPUT))
     used = len(rechecks.done) - before
-    if found is None or not found.depends:
+    if found is None:
+        return UNSETTLED, used
+    if not found.depends:
         return None, used
     low = None if found.low is None or not found.reachable else to_x(found.low)
     high = None if found.high is None or not found.reachable else to_x(found.high)
@@ -146,21 +170,28 @@ def depends(rechecks: Rechecks, inp: overrides.Input, at: tuple, value: float) -
     return False
 
 
-def remedies_for(rechecks: Rechecks, outcome) -> tuple[Remedy, ...]:
-    """The remedy of each input the target depends on, the budget of re-checks shared out evenly."""
+def remedies_for(rechecks: Rechecks, outcome) -> tuple[tuple[Remedy, ...], list[str]]:
+    """The remedy of each input the target depends on, the budget of re-checks shared out evenly;
+    and the inputs it depends on whose search the budget cut short."""
     start = len(rechecks.done)
-    if outcome.value is None or outcome.value <= 0:
-        return ()
-    chosen = [inp for inp in candidates(rechecks.table, outcome.columns)
-              if len(rechecks.done) - start < BUDGET and depends(rechecks, inp, outcome.at, outcome.value)]
-    out = []
+    value = rechecks.base(outcome.at)
+    if value is None or value <= 0:
+        return (), []
+    try:
+        chosen = [inp for inp in candidates(rechecks.table, outcome.columns)
+                  if len(rechecks.done) - start < BUDGET and depends(rechecks, inp, outcome.at, value)]
+    except seek.Budget:
+        return (), ["every input"]
+    out, cut = [], []
     for k, inp in enumerate(chosen):
         left = BUDGET - (len(rechecks.done) - start)
-        remedy, _ = remedy_for(rechecks, inp, outcome.at, outcome.need, outcome.value,
+        remedy, _ = remedy_for(rechecks, inp, outcome.at, outcome.need, value,
                                max(left // (len(chosen) - k), 4))
-        if remedy is not None:
+        if remedy == UNSETTLED:
+            cut.append(inp.name)
+        elif remedy is not None:
             out.append(remedy)
-    return tuple(out)
+    return tuple(out), cut
 
 
 def attach(checker, doc, outcomes: list, findings: list, every: bool) -> list:
@@ -171,9 +202,9 @@ def attach(checker, doc, outcomes: list, findings: list, every: bool) -> list:
     for o in outcomes:
         if o.finding is None or o.verdict == "unknown" or not (every or o.verdict == "not-met"):
             continue
-        found = remedies_for(rechecks, o)
+        found, cut = remedies_for(rechecks, o)
         f = findings[o.finding]
-        findings[o.finding] = replace(f, remedies=found, message=f.message + words(checker.units, found, o))
+        findings[o.finding] = replace(f, remedies=found, message=f.message + words(checker.units, found, o, cut))
     return findings
 
 
@@ -221,18 +252,20 @@ def phrase(units, r: Remedy) -> str:
     return f"{text} {where}{factor}{default}"
 
 
-def words(units, found: tuple[Remedy, ...], outcome) -> str:
+def words(units, found: tuple[Remedy, ...], outcome, cut=()) -> str:
     met = outcome.verdict == "met" or outcome.value is not None and outcome.need.low <= outcome.value \
         <= outcome.need.high
     good = sorted((r for r in found if r.reachable), key=change)[:SHOWN]
+    rest = f" (not settled within the re-checks allowed: {', '.join(cut)})" if cut else ""
     if not found:
-        return "" if met else " No single input of the spec changes it."
+        return (f" No remedy was settled within the re-checks allowed ({', '.join(cut)})." if cut else
+                "" if met else " No single input of the spec changes it.")
     if not good:
         tried = ", ".join(r.input for r in found[:5]) + (", …" if len(found) > 5 else "")
-        return f" No value of a single input meets it (tried: {tried})."
+        return f" No value of a single input was found to meet it in the range searched (tried: {tried}){rest}."
     parts = [phrase(units, r) for r in good]
     lead = " It stays met with " if met else " Reach it with "
-    return lead + (", or ".join([", ".join(parts[:-1]), parts[-1]]) if len(parts) > 1 else parts[0]) + "."
+    return lead + (", or ".join([", ".join(parts[:-1]), parts[-1]]) if len(parts) > 1 else parts[0]) + rest + "."
 
 
 # --------------------------------------------------------- what is missing

@@ -17,7 +17,8 @@ from __future__ import annotations
 from dataclasses import dataclass
 
 EPS = 1e-12  # in ln of the value: a value this close to a bound meets it
-CLOSE = 1e-9  # …and a met value this close to it is taken as the boundary (a re-check rounds to ~1e-15)
+CLOSE = 1e-7  # …and a met value this close to it (in ln) is taken as the boundary
+WIDTH = 1e-7  # a bracket this narrow (in t) is the boundary
 
 
 @dataclass
@@ -66,7 +67,7 @@ class Seeker:
         if ha is not None and abs(ha) <= CLOSE:
             return a
         for _ in range(60):
-            if abs(b - a) <= 1e-10 * max(1.0, abs(a)):
+            if abs(b - a) <= WIDTH * max(1.0, abs(a)):
                 break
             t = (a + b) / 2.0
             if ha is not None and hb is not None and ha != hb:
@@ -170,7 +171,7 @@ def region(g, t0: float, g0: float | None, lo: float, hi: float, band: tuple[flo
 def _scan(s: Seeker, t0: float, n: int = 12) -> Found:
     """A grid over the whole range; the met run nearest t0, its ends refined."""
     grid = sorted({s.lo + (s.hi - s.lo) * k / n for k in range(n + 1)} | {t0})
-    met = [t for t in sorted(grid, key=lambda t: abs(t - t0)) if s.met(t)]
-    if not met:
+    nearest = next((t for t in sorted(grid, key=lambda t: abs(t - t0)) if s.met(t)), None)  # nearest first
+    if nearest is None:
         return Found(None, None, False)
-    return s.component(met[0])
+    return s.component(nearest)

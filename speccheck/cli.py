@@ -17,7 +17,7 @@ import sys
 from pathlib import Path
 
 from speccheck._version import __version__
-from speccheck import files
+from speccheck import files, what_if
 from speccheck.reading.loader import MAX_DEPTH, Limits
 
 MAX_FILE_SIZE = 1024 * 1024 * 1024  # the largest --max-file-size: a spec is read whole into memory
@@ -51,6 +51,7 @@ def _parser() -> argparse.ArgumentParser:
     c.add_argument("--no-color", action="store_true", help="never colour the output (also: NO_COLOR=1)")
     c.add_argument("--color", action="store_true", help="colour the output even when it is not a terminal")
     c.add_argument("--no-sheet", action="store_true", help="human format: findings only, no sheet")
+    what_if.set_option(c)
     c.add_argument("--jobs", "-j", type=_positive_int, default=1, metavar="N",
                    help="check the files in N processes (the report is the same; gains only with more cores)")
     limits = c.add_argument_group("input limits (each file that exceeds one gets an input-limit finding)")
@@ -60,6 +61,7 @@ def _parser() -> argparse.ArgumentParser:
                         help=f"most YAML nodes in a document, aliases expanded (default {Limits.max_nodes})")
     limits.add_argument("--max-depth", type=_positive_int, default=Limits.max_depth, metavar="N",
                         help=f"deepest nesting of mappings and lists (default {Limits.max_depth})")
+    what_if.add_solve(sub)
     sub.add_parser("rules", help="list every rule with its id, severity and summary")
     e = sub.add_parser("explain", help="explain a rule: the physics, the source, examples")
     e.add_argument("rule", metavar="RULE-ID")
@@ -164,11 +166,15 @@ def _check(args, stdout, stderr, stdin=None) -> int:
     profiles = not args.review and args.format == "html"  # only the HTML report plots the field
     done = batches.check_files(expansion.files, lambda reader: Checker(
         units, Options(limits=limits, tolerance=config.tolerance, tolerances=config.tolerances,
-                       profiles=profiles), read=reader),
+                       profiles=profiles,
+                       settings=tuple(args.settings), remedies="all" if args.review or args.format == "review"
+                       else "unmet"), read=reader),
         limits.max_bytes, stdin, args.jobs)
     for message in done.messages:
         stderr.write(message)
     results = done.results
+    if what_if.set_problems(results, stderr):
+        return 2
     io_failure = bool(expansion.unmatched) or done.failed
     results = cfg.apply(results, config)
     fail_on = _fail_level(args, config)
@@ -308,6 +314,8 @@ def run(argv: list[str], stdout=None, stderr=None, stdin=None) -> int:
         return 0 if exc.code in (0, None) else 2
     if args.command == "check":
         return _check(args, stdout, stderr, stdin)
+    if args.command == "solve":
+        return what_if.solve(args, stdout, stderr, stdin, _config(args, stderr))
     if args.command == "rules":
         return _rules(stdout)
     if args.command == "explain":

@@ -7,6 +7,9 @@ Units are swapped or misspelt, numbers scaled or pushed past the float range,
 bounds and ± values put in odd places (stage parameters included), keys and
 lines deleted or duplicated, types changed, quotes added or dropped, digits
 written in other scripts, control characters and very long strings typed in.
+About a third of the cases also get random what-ifs on the command line
+(``--set INPUT=VALUE``: inputs the document has and lacks, values the grammar
+reads and values it refuses), from a random stream of their own.
 
 Each mutated document is checked in process by ``cli.run`` in every output
 format, and each run must
@@ -53,12 +56,14 @@ import speccheck
 from report_checks import FORMATS as ALL_FORMATS
 from report_checks import output_problem
 from speccheck import cli
+from speccheck.physics.quantities import ALIASES, QUANTITIES
 
 ROOT = Path(__file__).resolve().parent.parent
 EXAMPLES = ROOT / "example_specs"
 PACKAGE = Path(speccheck.__file__).resolve().parent
 
 DEFAULT_CASES = 180
+SET_SHARE = 0.3  # the share of cases also run with random --set arguments
 RUN_GUARD = 120  # seconds for one run of the checker: a stall guard for the fuzz budget
 MINIMIZE_CALLS = 120  # runs spent reducing the first document of each class
 
@@ -735,6 +740,26 @@ MUTATIONS = [  # (weight, mutation): edits of values weigh more than edits that 
 ]
 
 
+STAGE_NAME = re.compile(r"\bname:\s*([A-Za-z_][\w-]*)")
+SET_PARAMS = ["focal_length", "transmission", "gdd", "thickness", "divide_by", "magnification", "material",
+              "tod", "efficiency", "ratio", "nonsense"]
+
+
+def settings_for(rng: random.Random, doc: Doc) -> tuple[str, ...]:
+    """Command-line what-ifs (``--set INPUT=VALUE``) for a mutated document: inputs it has and
+    inputs it lacks, values of the spec grammar and values that break it."""
+    names = [m.group(1) for line in doc.lines for m in STAGE_NAME.finditer(line)] or ["lens"]
+    out = []
+    for _ in range(rng.choice([1, 1, 2, 3])):
+        target = rng.choice(["laser", "laser", rng.choice(names), rng.choice(names), "nowhere", "", "laser.x"])
+        param = rng.choice(sorted(ALIASES) + [q.name for q in QUANTITIES] + SET_PARAMS) if target.startswith("laser") \
+            else rng.choice(SET_PARAMS + list(STAGE_PARAMS))
+        value = rng.choice([_random_value(rng), rng.choice(STAGE_PARAMS.get(param, ["1"])), "", "{min: 1 mJ",
+                            "[1]", "sapphire", "sech2", "!!python/object:os.system x", "a: b", "\x1b[2J 1 mJ"])
+        out.append(f"--set={target}.{param}={value}" if rng.random() < 0.9 else f"--set={target}{param}{value}")
+    return tuple(out)
+
+
 def mutate(rng: random.Random, doc: Doc) -> None:
     count = rng.choice([1, 1, 1, 2, 2, 3, 4, 6])
     weights = [w for w, _ in MUTATIONS]
@@ -782,10 +807,10 @@ class Failure:
     detail: str
 
 
-def check_once(path: str, fmt: str) -> tuple[int | None, list[Failure]]:
+def check_once(path: str, fmt: str, extra: tuple = ()) -> tuple[int | None, list[Failure]]:
     """Run the command line on one file in one format; (exit code, what went wrong)."""
     out, err = io.StringIO(), io.StringIO()
-    argv = ["check", "--no-config", "--format", fmt, path]
+    argv = ["check", "--no-config", "--format", fmt, *extra, path]
     previous = signal.signal(signal.SIGALRM, _on_alarm)
     signal.alarm(RUN_GUARD)
     try:
@@ -805,6 +830,8 @@ def check_once(path: str, fmt: str) -> tuple[int | None, list[Failure]]:
         problems.append(Failure(("exit code outside 0, 1, 2", fmt), fmt, f"exit code {code!r}"))
     if "Traceback (most recent call last)" in err.getvalue():
         problems.append(Failure(("traceback on stderr", fmt), fmt, err.getvalue()[-600:]))
+    if extra and code == 2 and not out.getvalue():  # a --set this document cannot take: a usage error, said
+        return code, problems                         # on stderr (argparse's own stream for a malformed one)
     problem = output_problem(fmt, out.getvalue())
     if problem:
         sample = out.getvalue()
@@ -813,11 +840,11 @@ def check_once(path: str, fmt: str) -> tuple[int | None, list[Failure]]:
     return code, problems
 
 
-def check_all(path: str, formats=FORMATS) -> list[Failure]:
+def check_all(path: str, formats=FORMATS, extra: tuple = ()) -> list[Failure]:
     failures: list[Failure] = []
     codes: dict[str, int] = {}
     for fmt in formats:
-        code, problems = check_once(path, fmt)
+        code, problems = check_once(path, fmt, extra)
         failures += problems
         if code is not None:
             codes[fmt] = code
@@ -833,7 +860,8 @@ def _write(path: Path, text: str) -> None:
     path.write_bytes(text.encode("utf-8", "surrogateescape"))
 
 
-def minimize(text: str, key: tuple, formats: tuple, path: Path, budget: int = MINIMIZE_CALLS) -> str:
+def minimize(text: str, key: tuple, formats: tuple, path: Path, budget: int = MINIMIZE_CALLS,
+             extra: tuple = ()) -> str:
     """A shorter document that still shows the failure class ``key`` (greedy line deletion,
     then shortening of long lines)."""
     calls = 0
@@ -842,7 +870,7 @@ def minimize(text: str, key: tuple, formats: tuple, path: Path, budget: int = MI
         nonlocal calls
         calls += 1
         _write(path, "\n".join(lines) + "\n")
-        return any(f.key == key for f in check_all(str(path), formats))
+        return any(f.key == key for f in check_all(str(path), formats, extra))
 
     lines = text.split("\n")
     if lines and lines[-1] == "":
@@ -900,6 +928,7 @@ class FailureClass:
     cases: list[str] = field(default_factory=list)
     formats: set[str] = field(default_factory=set)
     minimal: str | None = None
+    extra: tuple = ()  # the --set arguments of the first case
 
 
 def test_mutated_specs_never_break_the_command_line(tmp_path, monkeypatch):
@@ -920,14 +949,16 @@ def test_mutated_specs_never_break_the_command_line(tmp_path, monkeypatch):
         spec = rng.choice(specs)
         doc = Doc(originals[spec].split("\n")[:-1], work, case)
         mutate(rng, doc)
+        set_rng = random.Random(f"{SEED}:{case}:set")  # its own stream: the edits of a case stay the same
+        extra = settings_for(set_rng, doc) if set_rng.random() < SET_SHARE else ()
         text = doc.text()
         path = work / f"fuzz-{case}.yaml"
         _write(path, text)
-        for failure in check_all(f"specs/{path.name}"):
+        for failure in check_all(f"specs/{path.name}", FORMATS, extra):
             known = classes.get(failure.key)
             if known is None:
-                known = classes[failure.key] = FailureClass(failure.key, case, spec, list(doc.notes), failure.fmt,
-                                                            failure.detail, text)
+                known = classes[failure.key] = FailureClass(failure.key, case, spec, list(doc.notes) + list(extra),
+                                                            failure.fmt, failure.detail, text, extra=extra)
             if case not in known.cases:
                 known.cases.append(case)
             known.formats.update(failure.fmt.split(","))
@@ -941,7 +972,7 @@ def test_mutated_specs_never_break_the_command_line(tmp_path, monkeypatch):
     for c in classes.values():  # reduce each class's first document, with its cheapest format
         formats = tuple(f for f in FORMATS if f in c.formats)
         formats = formats if c.key == ("exit code depends on the format",) else formats[:1]
-        c.minimal = minimize(c.text, c.key, formats, work / f"minimal-{c.first_case}.yaml")
+        c.minimal = minimize(c.text, c.key, formats, work / f"minimal-{c.first_case}.yaml", extra=c.extra)
 
     reducing = time.monotonic() - started - fuzzing
     report = [f"mutation fuzz: seed {SEED}, {len(ids)} cases x {len(FORMATS)} formats in {fuzzing:.0f} s "

@@ -65,6 +65,10 @@ class BlockCheck:
         key = self.keys.get(quantity, quantity)
         return self.paths.get(key) or self.paths.get("", (self.name, key))
 
+    def overridden(self, quantity: str) -> bool:
+        """Whether the value was set on the command line (``--set``; ``Document.mark_setting``)."""
+        return self.report.doc.values.get(tuple(self.at(quantity)), (1,))[0] == 0
+
     def show(self, quantity: str, si: float, unit: str | None = None) -> str:
         return format_quantity(self.c.units, si, unit or self.unit_for(quantity, si))
 

@@ -32,6 +32,8 @@ class Options:
     tolerance: float | None = None  # the project configuration's global tolerance
     tolerances: Mapping[str, float] = field(default_factory=dict)  # …and its per-quantity ones
     profiles: bool = False  # keep the field's profiles at the branch ends (the HTML report plots them)
+    settings: tuple[tuple[str, str], ...] = ()  # (INPUT, VALUE) of each --set, in order
+    remedies: str = "unmet"  # what would meet a target: for the "unmet" ones, "all" (a review), or "none"
 
 
 class Checker:
@@ -49,7 +51,36 @@ class Checker:
 
     def check_text(self, text: str | bytes, path: str) -> FileResult:
         self.data_files.new_document()
+        doc, settings, problem = self._prepared(text)
+        if problem:
+            return FileResult(path, (), set_problems=(problem,))
+        return self._check(doc, path, settings)
+
+    def solve(self, text: str | bytes, path: str, name: str):
+        """(the check of the document, ``solving.Solution``: the range of the input ``name`` over
+        which every target is met and no error is reported); raises ``overrides.SettingProblem``."""
+        from speccheck.checking import overrides, solving
+
+        self.data_files.new_document()
+        doc, settings, problem = self._prepared(text)
+        if problem:
+            raise overrides.SettingProblem(problem)
+        result = self._check(doc, path, settings, remedies=False)
+        return result, solving.solve(self, doc, name, result)
+
+    def _prepared(self, text) -> tuple:
+        """The document read, the --set values applied: (doc, what was set, a problem or None)."""
         doc = load(text, self.options.limits)
+        if not self.options.settings or doc.problems:
+            return doc, [], None
+        from speccheck.checking import overrides
+
+        try:
+            return doc, overrides.apply(self, doc, self.options.settings), None
+        except overrides.SettingProblem as e:
+            return doc, [], str(e)
+
+    def _check(self, doc, path: str, settings: list, remedies: bool = True) -> FileResult:
         report = Report(path, doc)
         for p in doc.problems:
             report.add(p.rule, p.message, line=p.line, column=p.column)
@@ -76,12 +107,43 @@ class Checker:
                         block.get(k) is not None for k in LASER_CHIRP if k != "chirp"):
                     from speccheck.checking.walker import check_path
 
-                    ends, fields = check_path(self, data, tolerance, report, sheet)
+                    outcomes: list = []
+                    ends, fields = check_path(self, data, tolerance, report, sheet, outcomes)
+                    if remedies and self._wants_remedies(outcomes):
+                        from speccheck.checking import remedies
+
+                        report.findings = remedies.attach(self, doc, outcomes, report.findings,
+                                                          self.options.remedies == "all")
             if sheet:
                 self._safety(data, sheet, report)
         findings = tuple(sorted(report.findings, key=Finding.sort_key))
         points = tuple(name for name in sheet if name in report.points)
-        return FileResult(path, findings, sheet, title, shape, shape_stated, tuple(ends), points, tuple(fields))
+        return FileResult(path, findings, sheet, title, shape, shape_stated, tuple(ends), points, tuple(fields),
+                          tuple(settings))
+
+    def _wants_remedies(self, outcomes: list) -> bool:
+        mode = self.options.remedies
+        return mode == "all" and bool(outcomes) or mode == "unmet" and any(o.verdict == "not-met" for o in outcomes)
+
+    def rerun(self, doc, data: dict, nominal: bool = False) -> tuple[dict, list, list]:
+        """The laser column and the path of ``data`` (the document with an input changed) checked
+        again, for the remedies: (sheet, the targets' outcomes, findings).  ``doc`` gives places.
+        ``nominal``: every plain value exact (no default tolerance), so that each interval is the
+        nominal value alone and the pulse's field is computed once per column, not per corner;
+        the nominal values are the same, and values that agree only within tolerances conflict."""
+        from speccheck.checking.walker import check_path
+
+        report = Report("", doc)
+        tolerance = self._tolerance(data, report)
+        if nominal:
+            tolerance = Tolerances({}, {}, 0.0, 0.0, tolerance.margin)
+        sheet: dict = {}
+        outcomes: list = []
+        block = data.get("laser")
+        if isinstance(block, dict):
+            sheet["laser"] = BlockCheck(self, "laser", block, tolerance, report, notes=False).run()
+            check_path(self, data, tolerance, report, sheet, outcomes)
+        return sheet, outcomes, report.findings
 
     def _safety(self, data: dict, sheet: dict, report: Report) -> None:
         from speccheck.checking import safety
@@ -149,6 +211,7 @@ class Checker:
             if limit.typical is not None and limit.low == limit.high:
                 continue  # a plain nominal value of the laser block: overriding it is the point
             line = report.doc.where(("laser", key))[0]
+            line = f"line {line}" if line else "set on the command line"
             if mine.low > limit.high:
                 side, bound = "above the sheet's maximum", limit.high
             elif mine.high < limit.low:
@@ -157,7 +220,7 @@ class Checker:
                 continue
             report.add("operating-point-beyond-limit",
                        f"operating point {name!r}: {key} {mine.text} is {side} "
-                       f"{check.show(limit.quantity, bound, limit.unit)} (laser.{key}: {limit.text}, line {line})",
+                       f"{check.show(limit.quantity, bound, limit.unit)} (laser.{key}: {limit.text}, {line})",
                        ("operating_points", i, key), quantities=(f"{name}.{key}", f"laser.{key}"))
 
     def _tolerance(self, data: dict, report: Report) -> Tolerances:

@@ -51,6 +51,10 @@ class Report:
         if self.dedupe and (rule_id, line, column, distinct) in self.seen:
             return
         self.seen.add((rule_id, line, column, distinct))
+        origin = None
+        if line == 0:  # a value set on the command line (loader.Document.mark_setting)
+            origin, line, column = self.doc.settings[column - 1], None, None
         self.findings.append(Finding(rule_id, rule(rule_id).severity, message, self.path, line, column,
                                      tuple(quantities), suspect, tuple(candidates), cause, likely,
-                                     tuple(sorted({self.doc.where(tuple(p))[0] for p in related} - {line, None}))))
+                                     tuple(sorted({self.doc.where(tuple(p))[0] for p in related}
+                                                  - {line, None, 0})), origin))

@@ -4,6 +4,7 @@ pulse there, and the strong-field figures at high intensity."""
 from __future__ import annotations
 
 import math
+from dataclasses import dataclass
 
 from speccheck.physics import hazards
 from speccheck.physics.quantities import BY_NAME
@@ -11,6 +12,26 @@ from speccheck.physics.beam import Beam, typical
 from speccheck.reading.units import format_number
 from speccheck.reading.values import Stated, ValueProblem
 from speccheck.records.findings import Cell
+
+
+@dataclass(frozen=True)
+class Outcome:
+    """One target's verdict, for what comes after the walk (``remedies``): where it is written, the
+    column it is compared with (and the columns of its branch), what it needs, the nominal value
+    the path gives (None: not determined), and the index of its finding in the report."""
+
+    at: tuple
+    column: str
+    columns: tuple
+    need: Stated
+    value: float | None
+    verdict: str  # "met" | "not-met" | "uncertain" | "unknown"
+    finding: int | None = None
+
+
+def _record(walk, where, last, columns, need, value, verdict, before: int) -> None:
+    found = len(walk.report.findings) - 1 if len(walk.report.findings) > before else None
+    walk.outcomes.append(Outcome(where, last, tuple(columns), need, value, verdict, found))
 
 
 def finish(walk, columns: list, beam: Beam, target, target_at: tuple, end_at: tuple = ()) -> None:
@@ -41,9 +62,13 @@ def judge(walk, columns: list, target, target_at: tuple) -> None:
             continue
         cell = cells.get(need.quantity)
         where = target_at + (key,)
+        before = len(walk.report.findings)
         if cell is None or cell.value is None and cell.low is None:
+            from speccheck.checking.remedies import determining
+
             walk.report.add("target-unknown", f"target {key} {need.text}: the path does not determine "
-                            f"{need.quantity} at {last!r}; state the numbers it needs", where)
+                            f"{need.quantity} at {last!r}; {determining(walk, last, need.quantity)}", where)
+            _record(walk, where, last, columns, need, None, "unknown", before)
             continue
         low = cell.low if cell.low is not None else 0.0
         high = cell.high if cell.high is not None else math.inf
@@ -53,18 +78,21 @@ def judge(walk, columns: list, target, target_at: tuple) -> None:
             margin = _margin(value, need)
             walk.report.add("target-met", f"target {key} {need.text} is met at {last!r}: {shown}{margin}.",
                             where, quantities=(f"{last}.{need.quantity}",))
+            _record(walk, where, last, columns, need, value, "met", before)
         elif high < need.low or low > need.high:
             cost = costliest(walk, columns, need)
             walk.report.add("target-not-met",
                             f"target {key} {need.text} is not met at {last!r}: the path gives {shown}"
                             f"{_margin(value, need)}.{cost}", where,
                             quantities=(f"{last}.{need.quantity}",))
+            _record(walk, where, last, columns, need, value, "not-met", before)
         else:
             walk.report.add("target-uncertain",
                             f"target {key} {need.text} may not be met at {last!r}: the path gives {shown} "
                             f"({walk.show(need.quantity, low, need.unit)} … "
                             f"{walk.show(need.quantity, high, need.unit)}), within the tolerances", where,
                             quantities=(f"{last}.{need.quantity}",))
+            _record(walk, where, last, columns, need, value, "uncertain", before)
 
 
 def _margin(value: float, need: Stated) -> str:

@@ -53,6 +53,7 @@ class PathWalk:
         self.ends: list[str] = []  # the last column of each branch, in the order walked
         self.named: set[str] = set()  # the stages' names so far, computed or not
         self.profiles: list[FieldProfile] = []  # the field at each branch end, for the report's plots
+        self.outcomes: list = []  # each target's verdict (targets.Outcome), for the remedies
         defaults = data.get("defaults") if isinstance(data.get("defaults"), dict) else {}
         self.b_limit = self.setting(defaults, "b_integral_limit", hazards.B_INTEGRAL_LIMIT)
         self.safety_factor = self.setting(defaults, "damage_safety_factor", hazards.DAMAGE_SAFETY_FACTOR)
@@ -374,10 +375,14 @@ def _gdd_cell(v: tuple) -> Cell:
 
 
 
-def check_path(checker, data: dict, tolerance: float, report, sheet: dict) -> tuple[list[str], list]:
+def check_path(checker, data: dict, tolerance: float, report, sheet: dict,
+               outcomes: list | None = None) -> tuple[list[str], list]:
     """Check the beam path into ``sheet``; return the column that ends each branch, and the field's
-    profiles there (where the checker's options ask for them and the path built the field)."""
+    profiles there (where the checker's options ask for them and the path built the field); put each
+    target's verdict in ``outcomes``."""
     walk = PathWalk(checker, data, tolerance, report, sheet)
     walk.run()
+    if outcomes is not None:
+        outcomes.extend(walk.outcomes)
     return walk.ends, walk.profiles
 

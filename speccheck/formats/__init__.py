@@ -52,19 +52,24 @@ def inert_results(results: list) -> list:
 
 
 def _inert_result(r):
-    texts = [r.path, r.title or "", *r.sheet, *r.branch_ends, *r.operating_points]
-    texts += [t for f in r.findings for t in (f.message, f.path, f.suspect or "", *f.quantities, *f.candidates)]
+    texts = [r.path, r.title or "", *r.sheet, *r.branch_ends, *r.operating_points, *r.settings]
+    texts += [t for f in r.findings for t in (f.message, f.path, f.suspect or "", *f.quantities, *f.candidates,
+                                              f.origin or "", *(x.input for x in f.remedies or ()))]
     texts += [c.text for cells in r.sheet.values() for c in cells.values()]
     if not _UNSAFE.search("".join(texts)):
         return r
     findings = tuple(replace(f, message=inert(f.message), path=inert(f.path),
                              suspect=inert(f.suspect) if f.suspect else f.suspect,
                              quantities=tuple(map(inert, f.quantities)),
-                             candidates=tuple(map(inert, f.candidates))) for f in r.findings)
+                             candidates=tuple(map(inert, f.candidates)),
+                             origin=inert(f.origin) if f.origin else f.origin,
+                             remedies=None if f.remedies is None else tuple(
+                                 replace(x, input=inert(x.input), column=inert(x.column)) for x in f.remedies))
+                     for f in r.findings)
     sheet = {inert(col): {q: c._replace(text=inert(c.text)) if c.text else c for q, c in cells.items()}
              for col, cells in r.sheet.items()}
     return replace(r, path=inert(r.path), title=inert(r.title) if r.title else r.title, findings=findings,
-                   sheet=sheet, branch_ends=tuple(map(inert, r.branch_ends)),
+                   sheet=sheet, settings=tuple(map(inert, r.settings)), branch_ends=tuple(map(inert, r.branch_ends)),
                    operating_points=tuple(map(inert, r.operating_points)))
 
 

@@ -48,7 +48,7 @@ def rows(results: list[FileResult]) -> list[list[str]]:
             cells: list[Cell | None] = [r.sheet.get(c, {}).get(q) for c in columns]
             out.append([_text(r.path), q, unit]
                        + [_num(c.value) if c else "" for c in cells]
-                       + [c.status if c else "" for c in cells])
+                       + [(c.status + (" (set)" if c.overridden else "")) if c else "" for c in cells])
     return out
 
 

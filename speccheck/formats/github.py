@@ -30,7 +30,8 @@ def command(f: Finding) -> str:
             props.append(("col", str(f.column)))
     props.append(("title", f.rule))
     joined = ",".join(f"{key}={escape_property(value)}" for key, value in props)
-    return f"::{COMMANDS[f.severity]} {joined}::{escape_data(f.message)}"
+    message = f"{f.origin}: {f.message}" if f.origin else f.message  # a value set on the command line
+    return f"::{COMMANDS[f.severity]} {joined}::{escape_data(message)}"
 
 
 def write(results: list[FileResult], out, options=None) -> None:

@@ -206,9 +206,9 @@ def _counts(counts: dict) -> str:
 
 
 def _where(f: Finding) -> str:
-    if f.line and f.column:
-        return f"{f.path}:{f.line}:{f.column}"
-    return f"{f.path}:{f.line}" if f.line else f.path
+    from speccheck.formats.common import place
+
+    return place(f)
 
 
 def _finding(f: Finding) -> str:
@@ -254,7 +254,9 @@ def _grid(result: FileResult, show: _Show, n: int) -> str:
     out = ['<p class="legend">Cells: <span class="c-stated">stated</span>'
            '<span class="c-derived"><span class="mark">=</span>derived</span>'
            '<span class="c-conflict"><span class="mark">!</span>conflict</span>'
-           '<span><span class="assumed">(default)</span> a default value</span></p>',
+           '<span><span class="assumed">(default)</span> a default value</span>'
+           + ('<span><span class="assumed">(--set)</span> set on the command line</span>'
+              if any(c.overridden for cells in sheet.values() for c in cells.values()) else "") + '</p>',
            f'<div class="scroll" role="region" aria-labelledby="sheet-{n}" tabindex="0">'
            f'<table class="sheet" data-rows="{len(rows)}" data-columns="{len(sheet)}">'
            f'<caption id="sheet-{n}">Sheet: {len(rows)} quantities × {len(sheet)} '
@@ -278,6 +280,8 @@ def _grid(result: FileResult, show: _Show, n: int) -> str:
             text.append(f'<span class="vh">{status}: </span>{e(_cell_main(cell, show))}')
             if cell.assumed:
                 text.append(' <span class="assumed">(default)</span>')
+            if cell.overridden:
+                text.append(' <span class="assumed">(--set)</span>')
             if status == "conflict":
                 implied = _implied(cell, show)
                 if implied:
@@ -365,7 +369,9 @@ def render(results: list[FileResult], units, plotter=None, why: str | None = Non
         out.append(f'<section class="file" id="file-{i}" aria-labelledby="file-{i}-h">'
                    f'<h2 id="file-{i}-h">{escape(heading)}</h2>'
                    f'<p class="path"><code>{escape(r.path)}</code></p>'
-                   f'<p class="counts">{_counts({s: r.count(s) for s in SEVERITIES})}</p>'
+                   + "".join(f'<p class="set">With <code>--set {escape(t)}</code> (the file is unchanged)</p>'
+                             for t in r.settings)
+                   + f'<p class="counts">{_counts({s: r.count(s) for s in SEVERITIES})}</p>'
                    "<h3>Findings</h3>")
         if r.findings:
             out.append('<ol class="findings">' + "".join(_finding(f) for f in r.findings) + "</ol>")

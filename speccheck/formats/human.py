@@ -8,6 +8,7 @@ from rich.console import Console
 from rich.table import Table
 from rich.text import Text
 
+from speccheck.formats.common import place
 from speccheck.records.findings import Cell, FileResult, SEVERITIES
 from speccheck.reading.units import choose_unit, format_number, format_quantity, pretty_unit
 
@@ -71,6 +72,7 @@ def _cell_text(cell: Cell, show) -> str:
 
 
 _MARK = {"stated": " ", "derived": "=", "conflict": "!"}
+SET_MARK = "*"  # a value set on the command line (--set)
 
 
 def _grid(console: Console, sheet: dict, show) -> None:
@@ -83,7 +85,10 @@ def _grid(console: Console, sheet: dict, show) -> None:
     label_width = max(len(q) for q in rows) + 1 if rows else 10
     cell_width = 15
     per_chunk = max(1, (console.width - label_width - 2) // (cell_width + 2))
-    console.print(Text("  stated   =derived   !conflict", style="dim"))
+    legend = "  stated   =derived   !conflict"
+    if any(c.overridden for cells in sheet.values() for c in cells.values()):
+        legend += f"   {SET_MARK}set on the command line"
+    console.print(Text(legend, style="dim"))
     for start in range(0, len(names), per_chunk):
         chunk = names[start:start + per_chunk]
         table = Table(show_header=True, header_style="bold", box=None, pad_edge=False)
@@ -100,7 +105,8 @@ def _grid(console: Console, sheet: dict, show) -> None:
                 unit = cell.display_unit or cell.unit
                 number = show(cell.value, unit) if cell.value is not None else (
                     "≥ " + show(cell.low, unit) if cell.low is not None else "≤ " + show(cell.high, unit))
-                values.append(Text(_MARK[cell.status] + number, style=_STATUS_STYLE[cell.status]))
+                mark = SET_MARK if cell.overridden else _MARK[cell.status]
+                values.append(Text(mark + number, style=_STATUS_STYLE[cell.status]))
             if any(v.plain for v in values):
                 table.add_row(q, *values)
         console.print(table)
@@ -117,6 +123,8 @@ def write(results: list[FileResult], out, options) -> None:
         if result.title:
             header.append(f" — {result.title}")
         console.print(header)
+        for setting in result.settings:
+            console.print(Text(f"  with --set {setting} (the file is unchanged)", style="bold"))
         if (options is None or options.show_sheet) and len(result.sheet) > 1:
             _grid(console, result.sheet, show)
         elif options is None or options.show_sheet:
@@ -128,13 +136,13 @@ def write(results: list[FileResult], out, options) -> None:
                 table.add_column("value")
                 table.add_column("status", no_wrap=True)
                 for name, cell in cells.items():
-                    status = cell.status + (" (default)" if cell.assumed else "")
+                    status = cell.status + (" (default)" if cell.assumed else "") + (
+                        " (--set)" if cell.overridden else "")
                     table.add_row(name, _cell_text(cell, show), Text(status, style=_STATUS_STYLE[cell.status]))
                 console.print(table)
         for f in result.findings:
             line = Text()
-            where = f"{f.path}:{f.line}:{f.column}" if f.line else f.path
-            line.append(where + ": ", style="bold")
+            line.append(place(f) + ": ", style="bold")
             line.append(f.severity, style=_SEVERITY_STYLE[f.severity])
             line.append(f" [{f.rule}] ", style="dim")
             line.append(f.message)

@@ -10,6 +10,7 @@ from __future__ import annotations
 import json
 import math
 
+from speccheck.formats.common import remedy_dict
 from speccheck.records.findings import Cell, FileResult, Finding, SEVERITIES
 
 VERSION = 1
@@ -34,6 +35,10 @@ def finding_dict(f: Finding) -> dict:
         out["cause"] = f.cause
     if f.likely:
         out["likely"] = True
+    if f.origin:
+        out["origin"] = f.origin
+    if f.remedies is not None:
+        out["remedies"] = [remedy_dict(x) for x in f.remedies]
     return out
 
 
@@ -47,6 +52,8 @@ def cell_dict(c: Cell) -> dict:
         out["stated"] = c.text
     if c.assumed:
         out["assumed"] = True
+    if c.overridden:
+        out["set"] = True
     return out
 
 
@@ -54,7 +61,7 @@ def document(results: list[FileResult]) -> dict:
     return {
         "version": VERSION,
         "files": [
-            {"path": r.path, "title": r.title,
+            {"path": r.path, "title": r.title, **({"set": list(r.settings)} if r.settings else {}),
              "findings": [finding_dict(f) for f in r.findings],
              "sheet": {block: {q: cell_dict(c) for q, c in cells.items()} for block, cells in r.sheet.items()}}
             for r in results
@@ -100,6 +107,8 @@ class _SheetWriter:
             text += f',"stated":{self.string(c.text)}'
         if c.assumed:
             text += ',"assumed":true'
+        if c.overridden:
+            text += ',"set":true'
         return text + "}"
 
     def sheet(self, sheet: dict) -> str:
@@ -113,7 +122,8 @@ def write(results: list[FileResult], out, options=None) -> None:
     sheets = _SheetWriter()
     out.write(f'{{"version":{VERSION},"files":[')
     for i, r in enumerate(results):
-        head = {"path": r.path, "title": r.title, "findings": [finding_dict(f) for f in r.findings]}
+        head = {"path": r.path, "title": r.title, **({"set": list(r.settings)} if r.settings else {}),
+                "findings": [finding_dict(f) for f in r.findings]}
         out.write(("," if i else "") + _dumps(head)[:-1] + ',"sheet":' + sheets.sheet(r.sheet) + "}")
     counts = {s: sum(r.count(s) for r in results) for s in SEVERITIES}
     out.write('],"counts":' + _dumps(counts) + "}\n")

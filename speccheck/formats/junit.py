@@ -14,6 +14,7 @@ from __future__ import annotations
 import re
 import xml.etree.ElementTree as ET
 
+from speccheck.formats.common import place
 from speccheck.records.findings import SEVERITIES, FileResult, Finding
 
 _NOT_XML = re.compile("[\x00-\x08\x0b\x0c\x0e-\x1f\ud800-\udfff\ufffe\uffff]")
@@ -25,8 +26,7 @@ def _text(s: str) -> str:
 
 
 def _line(f: Finding) -> str:
-    where = f"{f.path}:{f.line}:{f.column}" if f.line and f.column else (f"{f.path}:{f.line}" if f.line else f.path)
-    return f"{where}: {f.severity} [{f.rule}] {f.message}"
+    return f"{place(f)}: {f.severity} [{f.rule}] {f.message}"
 
 
 def document(results: list[FileResult], fail_on: str = "error") -> ET.Element:

@@ -24,6 +24,10 @@ def _phrase(quantity: str) -> str:
     return quantity.replace("_", " ").replace("m2", "M²")
 
 
+def _at(f) -> str:
+    return f"({f.origin})" if f.origin else f"line {f.line}"
+
+
 def write(results: list[FileResult], out, options) -> None:
     color = bool(options and options.color)
     console = QuietConsole(file=out, color_system="auto" if color else None, force_terminal=color,
@@ -32,6 +36,8 @@ def write(results: list[FileResult], out, options) -> None:
     for result in results:
         console.print(Text(f"{result.title or result.path}", style="bold")
                       + Text(f"  ({result.path})" if result.title else ""))
+        for setting in result.settings:
+            console.print(Text(f"  With --set {setting} (the file is unchanged).", style="bold"))
         # Values an error is about: suspects and candidates of conflicts, every value of other errors.
         flagged = {q for f in result.findings if f.severity == "error"
                    for q in ((f.suspect,) if f.suspect else f.candidates) if q} | {
@@ -69,11 +75,11 @@ def write(results: list[FileResult], out, options) -> None:
         if errors:
             console.print(Text("  Impossible or contradictory:", style=_STYLE["error"]))
             for f in errors:
-                console.print(Text(f"    line {f.line}: " if f.line else "    ") + Text(f.message))
+                console.print(Text(f"    {_at(f)}: " if f.line or f.origin else "    ") + Text(f.message))
         others = [f for f in result.findings if f.severity != "error"]
         for f in others:
             console.print(Text(f"  {f.severity.capitalize()}: ", style=_STYLE[f.severity])
-                          + Text(f"line {f.line}: {f.message}" if f.line else f.message))
+                          + Text(f"{_at(f)}: {f.message}" if f.line or f.origin else f.message))
         if not errors:
             console.print(Text("  No claim contradicts another.", style="green"))
         console.print()

@@ -16,6 +16,7 @@ from pathlib import PurePath
 from urllib.parse import quote
 
 from speccheck._version import __version__
+from speccheck.formats.common import remedy_dict
 from speccheck.records.findings import FileResult, Finding
 from speccheck.records.rules import RULES
 
@@ -52,6 +53,8 @@ def _descriptor(rule) -> dict:
 
 def _result(f: Finding, index: dict[str, int]) -> dict:
     location: dict = {"physicalLocation": {"artifactLocation": {"uri": uri(f.path)}}}
+    if f.origin:  # a value set on the command line: no line of the file
+        location["message"] = {"text": f"set on the command line: {f.origin}"}
     if f.line:
         region = {"startLine": f.line}
         if f.column:
@@ -72,6 +75,10 @@ def _result(f: Finding, index: dict[str, int]) -> dict:
         properties["cause"] = f.cause
     if f.likely:
         properties["likely"] = True
+    if f.origin:
+        properties["origin"] = f.origin
+    if f.remedies is not None:
+        properties["remedies"] = [remedy_dict(x) for x in f.remedies]
     if properties:
         out["properties"] = properties
     return out

@@ -119,6 +119,10 @@ ALIASES: dict[str, dict[str, str]] = {
 # Categorical keys of a block and the values each accepts (the pulse-shape and beam-profile tables of physics/shapes.py).
 CATEGORICAL = ("pulse_shape", "beam_profile")
 
+# The colour of the light: the experiment's choice rather than a knob to reach a number (a new
+# one changes every material's dispersion), so goal seek does not offer it as a remedy.
+CARRIER = ("wavelength", "photon_energy", "carrier_frequency", "carrier_period")
+
 # Laser-block keys of the chirp the pulse carries (not quantities of the relation table: the
 # path's field reads them, checking/laser_pulse.py).
 LASER_CHIRP = ("chirp", "gdd", "tod")

@@ -56,6 +56,13 @@ class Document:
     values: dict[Path, tuple[int, int]] = field(default_factory=dict)  # path -> (line, col) of the value
     keys: dict[Path, tuple[int, int]] = field(default_factory=dict)  # path -> (line, col) of its key
     problems: list[Problem] = field(default_factory=list)
+    # values set on the command line (``--set``): their paths are marked at line 0, column k for
+    # the k-th of these texts, so that a finding at one can point to the command line
+    settings: list[str] = field(default_factory=list)
+
+    def mark_setting(self, path: Path, text: str) -> None:
+        self.settings.append(text)
+        self.values[tuple(path)] = self.keys[tuple(path)] = (0, len(self.settings))
 
     def where(self, path: Path, key: bool = False) -> tuple[int | None, int | None]:
         """Line and column of ``path``, or of its nearest ancestor that has one."""

@@ -24,6 +24,11 @@ class Finding:
     likely: bool = False  # the suspect is one of several candidates, the only one a catalogued mistake explains
     # the lines of the other values the finding concerns: a suppression on any of them applies to it
     related_lines: tuple[int, ...] = ()
+    # where a finding's place is a value set on the command line (``--set INPUT=VALUE``), not a
+    # line of the file: that setting as typed (``line`` and ``column`` are then None)
+    origin: str | None = None
+    # what would meet a target: one ``Remedy`` per input it depends on (None: not computed)
+    remedies: tuple["Remedy", ...] | None = None
 
     def __post_init__(self) -> None:
         if self.severity not in SEVERITY_RANK:
@@ -31,6 +36,26 @@ class Finding:
 
     def sort_key(self) -> tuple:
         return (self.path, self.line or 0, self.column or 0, self.rule, self.message)
+
+
+@dataclass(frozen=True)
+class Remedy:
+    """The range of one input over which a target is met, all else unchanged (nominal values).
+
+    ``low``/``high`` in SI (None: unbounded on that side); ``reachable`` False when no value in
+    the range searched meets it; ``stated`` False for a parameter's default value.  ``value``
+    (the input's nominal value now) and ``display_unit`` are for the wording, not the JSON."""
+
+    input: str  # "<column>.<parameter>"
+    column: str
+    parameter: str
+    low: float | None
+    high: float | None
+    unit: str  # SI
+    reachable: bool
+    stated: bool
+    value: float | None = None
+    display_unit: str = ""
 
 
 class Cell(NamedTuple):
@@ -47,6 +72,7 @@ class Cell(NamedTuple):
     implied_high: float | None = None
     assumed: bool = False  # a default value, not stated by the user
     text: str = ""  # the value as the user wrote it (stated and conflict cells)
+    overridden: bool = False  # set on the command line (``--set``), not read from the file
 
 
 @dataclass(frozen=True)
@@ -73,6 +99,8 @@ class FileResult:
     branch_ends: tuple[str, ...] = ()  # the column that ends each branch of the beam path
     operating_points: tuple[str, ...] = ()  # the columns that are operating points of a maker's sheet
     fields: tuple[FieldProfile, ...] = ()  # the pulse's field at each branch end, where the path built it
+    settings: tuple[str, ...] = ()  # the --set INPUT=VALUE applied to this file, with what moved along
+    set_problems: tuple[str, ...] = ()  # a --set this file cannot take: the file is not checked
 
     def count(self, severity: str) -> int:
         return sum(1 for f in self.findings if f.severity == severity)

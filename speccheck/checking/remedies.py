@@ -1,0 +1,303 @@
+"""What it would take: for a target, the range of each single input over which it is met.
+
+For each target not met (every target in a review) and each input it depends on (the
+laser's stated quantities, the stated and defaulted parameters of the stages of its
+branch: ``overrides.inputs``), the spec is checked again with that input changed and
+all else as it is, and ``seek`` finds the interval of the input over which the target's
+nominal value meets it.  Re-checking is what makes this generic: what an input determines
+moves with it (``overrides.moved``: at a fixed rate a new energy moves the power), every
+stage applies its own physics, and nothing here knows a stage kind or a parameter.
+
+Positive inputs are searched in log space from 1/30 to 30 times their value (a share of
+the beam up to 1, a whole number from 1 and rounded), signed ones (a GDD) over ±4 times
+theirs.  A value at which the check reports an error at the input itself (an M² below 1,
+a transmission above 100 %, a value the rest of the spec contradicts) is outside its
+domain and does not meet the target.  The laser's wavelength (``quantities.CARRIER``) is not offered.  A met range that reaches the end of the search is open (None) on that side.  A
+defaulted parameter is offered only where a value it can take meets the target.
+``reachable: false`` means that no value was found in the range searched: a grid of the
+range and the secant steps; a met window narrower than the grid's step (a pulse whose
+width jumps as a side lobe crosses half maximum) can be missed.  The
+re-checks are bounded per target (``BUDGET``) and shared between targets.
+"""
+
+from __future__ import annotations
+
+import math
+import warnings
+from dataclasses import replace
+
+from speccheck.checking import overrides, seek
+from speccheck.checking.column import NAMES
+from speccheck.checking.engine import evaluate, network_for
+from speccheck.physics.beam import CARRIED
+from speccheck.physics.quantities import CARRIER
+from speccheck.physics.shapes import BEAM_PROFILES, DEFAULT_PROFILE, DEFAULT_SHAPE, PULSE_SHAPES
+from speccheck.reading.units import format_number
+from speccheck.records.findings import Remedy
+
+SPAN = math.log(30.0)  # positive inputs: searched from 1/30 to 30 times their value
+SIGNED_SPAN = 4.0  # signed inputs: ± this many times their size
+BUDGET = 96  # re-checks per target, at most, shared out evenly over the inputs it depends on
+PER_INPUT = 24  # …and at most this many per input
+DOCUMENT_BUDGET = 120  # …and per document, over all its targets
+SHOWN = 3  # remedies said in words (the smallest changes)
+UNSETTLED = "unsettled"  # the budget ran out before the search ended
+
+
+class Rechecks:
+    """The document checked again with one input changed, each (input, value) once."""
+
+    def __init__(self, checker, doc, nominal: bool = True) -> None:
+        self.c, self.doc, self.data, self.nominal = checker, doc, doc.data, nominal
+        self.table = overrides.inputs(checker, doc.data)
+        self.done: dict = {}
+        self.moves: dict = {}
+
+    def base(self, at: tuple) -> float | None:
+        """The target's value in a re-check of the document as it is (the reference of a search:
+        a nominal re-check may differ from the check's own value in the last digits)."""
+        if "base" not in self.moves:
+            _, outcomes, _ = self.c.rerun(self.doc, self.data, self.nominal)
+            self.moves["base"] = {o.at: o.value for o in outcomes}
+        return self.moves["base"].get(at)
+
+    def with_value(self, inp: overrides.Input, x: float) -> dict:
+        unit = "" if inp.dimension == "1" else " " + inp.dimension
+        raw = x if inp.dimension == "1" and inp.kind != "angle" else f"{x!r}{unit}"
+        if inp.name not in self.moves:  # what moves with it: found with the input stated
+            placed = overrides.replaced(self.data, inp.at, raw)
+            self.moves[inp.name] = overrides.moved(self.c, placed.get("laser"), inp.parameter) \
+                if inp.column == "laser" else ()
+        return overrides.replaced(self.data, inp.at, raw, self.moves[inp.name])
+
+    def run(self, inp: overrides.Input, x: float):
+        """(value of each target by its place, whether any error was reported) with ``inp`` at x; no
+        target has a value where an error is reported at the input itself (outside its domain)."""
+        key = (inp.name, x)
+        if key not in self.done:
+            if len(self.done) >= DOCUMENT_BUDGET:
+                raise seek.Budget
+            try:
+                with warnings.catch_warnings():  # far from the spec's values a formula may leave its domain
+                    warnings.simplefilter("ignore")
+                    sheet, outcomes, findings = self.c.rerun(self.doc, self.with_value(inp, x), self.nominal)
+                places = {self.doc.where(inp.at), self.doc.where(inp.at, key=True)}
+                errors = [f for f in findings if f.severity == "error"]
+                # (exact values conflict where they agree only within tolerances: not a domain's end)
+                outside = any((f.line, f.column) in places for f in errors
+                              if not f.rule.startswith("target-") and not (self.nominal and f.rule == "relation-conflict"))
+                self.done[key] = ({} if outside else {o.at: o.value for o in outcomes}, bool(errors))
+            except (ArithmeticError, ValueError):
+                self.done[key] = ({}, True)
+        return self.done[key]
+
+
+def candidates(table: dict, columns: tuple) -> list[overrides.Input]:
+    """The inputs a target of a branch with these columns may depend on, with a nominal value."""
+    out = []
+    for inp in table.values():
+        if inp.kind not in ("quantity", "number", "angle") or inp.value is None:
+            continue
+        if inp.column == "laser" and inp.stated and inp.parameter not in CARRIER and (inp.value > 0 or inp.signed):
+            out.append(inp)
+        elif inp.column in columns and inp.column != "laser" and (inp.value > 0 or inp.signed):
+            out.append(inp)
+    return out
+
+
+def domain(inp: overrides.Input):
+    """(t0, lowest t, highest t, first step, t -> x) of the coordinate searched: ln x for a
+    positive input, x in units of its own size for a signed one."""
+    x0 = inp.value
+    if inp.signed:
+        size = abs(x0) or 1.0
+        t0 = x0 / size
+        return t0, t0 - SIGNED_SPAN, t0 + SIGNED_SPAN, 0.1, lambda t: t * size
+    t0 = math.log(x0)
+    lo, hi = t0 - SPAN, t0 + SPAN
+    if math.isfinite(inp.highest):
+        hi = min(hi, math.log(inp.highest))
+    if inp.exact:
+        lo = max(lo, 0.0)
+    return t0, lo, max(hi, t0), 0.1, math.exp
+
+
+def remedy_for(rechecks: Rechecks, inp: overrides.Input, at: tuple, need, value: float | None,
+               budget: int) -> tuple[Remedy | None, int]:
+    """The remedy of one input for the target at ``at`` (None: it does not depend on it), and the
+    re-checks it used."""
+    if value is None or value <= 0.0:
+        return None, 0
+    t0, lo, hi, step, to_x = domain(inp)
+    band = (math.log(need.low) if need.low > 0 else -math.inf, math.log(need.high) if math.isfinite(need.high)
+            else math.inf)
+    before = len(rechecks.done)
+
+    def g(t: float):
+        got = rechecks.run(inp, to_x(t))[0].get(at)
+        return math.log(got) if got is not None and got > 0 else None
+
+    found = seek.seek(g, t0, math.log(value), lo, hi, band, step, min(budget, PER_INPUT))
+    used = len(rechecks.done) - before
+    if found is None:
+        return UNSETTLED, used
+    if not found.depends:
+        return None, used
+    low = None if found.low is None or not found.reachable else to_x(found.low)
+    high = None if found.high is None or not found.reachable else to_x(found.high)
+    reachable = found.reachable
+    if found.reachable and math.isfinite(inp.highest) and found.high is None:
+        high = inp.highest  # a share of the beam is met up to all of it
+    if inp.exact and reachable:  # a whole number: the whole numbers inside
+        low = float(math.ceil(low - 1e-9)) if low is not None else 1.0
+        high = float(math.floor(high + 1e-9)) if high is not None else None
+        reachable = high is None or low <= high
+    if not reachable and not inp.stated:
+        return None, used  # a default offered only where a value it can take meets the target
+    return Remedy(inp.name, inp.column, inp.parameter, low if reachable else None, high if reachable else None,
+                  inp.dimension, reachable, inp.stated, inp.value, inp.display_unit), used
+
+
+def depends(rechecks: Rechecks, inp: overrides.Input, at: tuple, value: float) -> bool:
+    """Whether the target at ``at`` moves when the input moves by one first step either way (the
+    same points the search starts from, so they are checked once)."""
+    t0, lo, hi, step, to_x = domain(inp)
+    for t in (t0 + step, t0 - step):
+        if lo <= t <= hi:
+            got = rechecks.run(inp, to_x(t))[0].get(at)
+            if got is None or abs(math.log(got / value) if got > 0 else math.inf) >= seek.EPS:
+                return True
+    return False
+
+
+def remedies_for(rechecks: Rechecks, outcome) -> tuple[tuple[Remedy, ...], list[str]]:
+    """The remedy of each input the target depends on, the budget of re-checks shared out evenly;
+    and the inputs it depends on whose search the budget cut short."""
+    start = len(rechecks.done)
+    value = rechecks.base(outcome.at)
+    if value is None or value <= 0:
+        return (), []
+    try:
+        chosen = [inp for inp in candidates(rechecks.table, outcome.columns)
+                  if len(rechecks.done) - start < BUDGET and depends(rechecks, inp, outcome.at, value)]
+    except seek.Budget:
+        return (), ["every input"]
+    out, cut = [], []
+    for k, inp in enumerate(chosen):
+        left = BUDGET - (len(rechecks.done) - start)
+        remedy, _ = remedy_for(rechecks, inp, outcome.at, outcome.need, value,
+                               max(left // (len(chosen) - k), 4))
+        if remedy == UNSETTLED:
+            cut.append(inp.name)
+        elif remedy is not None:
+            out.append(remedy)
+    return tuple(out), cut
+
+
+def attach(checker, doc, outcomes: list, findings: list, every: bool) -> list:
+    """The findings, those of targets not met (with ``every``, of every target the path
+    determines) carrying their remedies and the smallest of them in words."""
+    rechecks = Rechecks(checker, doc)
+    findings = list(findings)
+    for o in outcomes:
+        if o.finding is None or o.verdict == "unknown" or not (every or o.verdict == "not-met"):
+            continue
+        found, cut = remedies_for(rechecks, o)
+        f = findings[o.finding]
+        findings[o.finding] = replace(f, remedies=found, message=f.message + words(checker.units, found, o, cut))
+    return findings
+
+
+# ------------------------------------------------------------------ wording
+
+def change(r: Remedy) -> float:
+    """How far the input has to move, as |ln| of a factor (0 inside the range)."""
+    x = r.value
+    if not r.reachable or x is None:
+        return math.inf
+    if (r.low is None or x >= r.low) and (r.high is None or x <= r.high):
+        ends = [e for e in (r.low, r.high) if e is not None]  # met: the margin to the nearer end
+        return min((_distance(x, e) for e in ends), default=math.inf)
+    end = r.low if r.low is not None and x < r.low else r.high
+    return _distance(x, end)
+
+
+def _distance(x: float, end: float) -> float:
+    if x > 0 and end > 0:
+        return abs(math.log(end / x))
+    return math.log1p(abs(end - x) / max(abs(x), 1e-300))
+
+
+def phrase(units, r: Remedy) -> str:
+    from speccheck.checking.wording import show
+
+    unit = r.display_unit or r.unit
+    name = r.parameter.replace("_", " ")
+    where = "at the laser" if r.column == "laser" else f"at {r.column!r}"
+
+    def v(x):
+        return show(units, x, unit) if unit != "1" else format_number(x, 4)
+
+    x = r.value
+    if r.low is None and r.high is None:
+        return f"any {name} {where}"
+    if r.low is not None and r.high is not None and r.low != r.high and not (r.high == 1.0 and unit == "%"):
+        text = f"{name} {v(r.low)} … {v(r.high)}"
+    elif r.low is not None and (r.high is None or unit == "%" or r.low == r.high):
+        text = f"{name} ≥ {v(r.low)}" if r.low != r.high else f"{name} {v(r.low)}"
+    else:
+        text = f"{name} ≤ {v(r.high)}"
+    end = r.low if r.low is not None and (x < r.low or r.high is None) else r.high
+    signed = r.unit in overrides.SIGNED or r.unit == "rad"  # a factor says nothing of a signed number
+    factor = f" (×{format_number(end / x, 3)})" if end and x and x > 0 and end > 0 and not signed else f" (now {v(x)})"
+    default = "" if r.stated else ", not stated"
+    return f"{text} {where}{factor}{default}"
+
+
+def words(units, found: tuple[Remedy, ...], outcome, cut=()) -> str:
+    met = outcome.verdict == "met" or outcome.value is not None and outcome.need.low <= outcome.value \
+        <= outcome.need.high
+    # a remedy open on both sides says nothing to do: met whatever the input
+    good = sorted((r for r in found if r.reachable and (r.low is not None or r.high is not None)), key=change)[:SHOWN]
+    rest = f" (not settled within the re-checks allowed: {', '.join(cut)})" if cut else ""
+    if not found:
+        return (f" No remedy was settled within the re-checks allowed ({', '.join(cut)})." if cut else
+                "" if met else " No single input of the spec changes it.")
+    if not good:
+        tried = ", ".join(r.input for r in found[:5]) + (", …" if len(found) > 5 else "")
+        return f" No value of a single input was found to meet it in the range searched (tried: {tried}){rest}."
+    parts = [phrase(units, r) for r in good]
+    lead = " It stays met with " if met else " Reach it with "
+    return lead + (", or ".join([", ".join(parts[:-1]), parts[-1]]) if len(parts) > 1 else parts[0]) + rest + "."
+
+
+# --------------------------------------------------------- what is missing
+
+def determining(walk, column: str, quantity: str) -> str:
+    """Which laser quantities would determine ``quantity`` at ``column``, found through the
+    relation table: the quantities known there, those the laser states but a stage could not
+    carry (a focus without a wavelength drops the beam size), and the candidate."""
+    shape = walk.categorical.get("pulse_shape")
+    profile = walk.categorical.get("beam_profile")
+    ctx = walk.c.context(shape if shape in PULSE_SHAPES else DEFAULT_SHAPE,
+                         profile if profile in BEAM_PROFILES else DEFAULT_PROFILE)
+    net = network_for(NAMES, ctx)
+    laser, end = walk.sheet.get("laser", {}), walk.sheet.get(column, {})
+
+    def known(cells):
+        return {q for q, c in cells.items() if q in net.index and (c.value is not None or c.low is not None)}
+
+    at_laser, at_end = known(laser), known(end)
+    base = at_end | {q for q in CARRIED if q in at_laser and q not in at_end}
+    missing = [q for q in CARRIED if q not in at_laser]
+
+    def determines(extra) -> bool:
+        return net.index[quantity] in evaluate(net, {net.index[q]: 0.0 for q in base | set(extra)})
+
+    singles = [q for q in missing if determines((q,))]
+    if singles:
+        return "stating " + " or ".join(f"laser.{q}" for q in singles) + " would determine it"
+    pairs = [(a, b) for i, a in enumerate(missing) for b in missing[i + 1:] if determines((a, b))][:3]
+    if pairs:
+        return "stating " + " or ".join(f"both laser.{a} and laser.{b}" for a, b in pairs) + " would determine it"
+    return "state the numbers it needs"

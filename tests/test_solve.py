@@ -1,0 +1,125 @@
+"""``speccheck solve FILE --for INPUT``: the range of one input over which every target is met and no
+error is reported, checked against a brute-force scan of ``--set`` values and a closed form."""
+
+from __future__ import annotations
+
+import io
+import json
+import math
+import textwrap
+
+import pytest
+
+from speccheck.checking.document import Checker, Options
+from speccheck.cli import run
+
+SPEC = "spec_version: 1\n" + textwrap.dedent("""\
+    laser:
+      wavelength: 1030 nm
+      repetition_rate: 10 kHz
+      pulse_energy: 100 µJ
+      pulse_duration: 300 fs
+      pulse_shape: gaussian
+      beam_diameter: 5 mm
+      m2: 1
+    path:
+      - {name: mirror, kind: optic, transmission: 90%}
+      - {name: lens, kind: focus, focal_length: 200 mm}
+    target:
+      peak_intensity: ">= {intensity} W/cm^2"
+      peak_fluence: "<= {fluence} J/cm^2"
+    """)
+
+
+def at_focus(f: float) -> tuple[float, float]:
+    """Peak intensity and fluence at the focus, by hand (W/m², J/m²): the 1/e² spot radius
+    w0 = 2M²λf/(πD) (Gaussian-beam optics, Siegman, Lasers, ch. 17), F = 2E/(πw0²), I = 0.9394 F/τ."""
+    w0 = 2 * 1030e-9 * f / (math.pi * 5e-3)
+    fluence = 2 * 0.9 * 100e-6 / (math.pi * w0 ** 2)
+    return 2 * math.sqrt(math.log(2) / math.pi) * fluence / 300e-15, fluence
+
+
+I0, F0 = at_focus(0.2)
+TEXT = SPEC.replace("{intensity}", f"{0.5 * I0 / 1e4:.12g}").replace("{fluence}", f"{2 * F0 / 1e4:.12g}")
+
+
+@pytest.fixture
+def spec(tmp_path):
+    path = tmp_path / "focus.yaml"
+    path.write_text(TEXT, encoding="utf-8")
+    return path
+
+
+def solve(*argv) -> tuple[int, str, str]:
+    out, err = io.StringIO(), io.StringIO()
+    code = run(["solve", "--no-config", *argv], stdout=out, stderr=err)
+    return code, out.getvalue(), err.getvalue()
+
+
+def brute_force(units, lengths) -> list[float]:
+    """The focal lengths at which the check, with that value set, reports no error and the nominal
+    value of each target meets it."""
+    good = []
+    for f in lengths:
+        result = Checker(units, Options(settings=(("lens.focal_length", f"{f!r} m"),), remedies="none")).check_text(
+            TEXT, "focus.yaml")
+        lens = result.sheet["lens"]
+        ok = lens["peak_intensity"].value >= 0.5 * I0 and lens["peak_fluence"].value <= 2 * F0
+        if ok and not any(x.severity == "error" for x in result.findings):
+            good.append(f)
+    return good
+
+
+def test_solve_on_a_path_agrees_with_a_brute_force_scan_and_the_closed_form(spec, units):
+    code, out, err = solve(str(spec), "--for", "lens.focal_length", "--format", "json")
+    assert code == 0 and not err
+    found = json.loads(out)
+    assert list(found) == ["input", "low", "high", "unit"]
+    assert found["input"] == "lens.focal_length" and found["unit"] == "m"
+    # I ∝ 1/f² and F ∝ 1/f²: I ≥ I0/2 for f ≤ √2·200 mm, F ≤ 2F0 for f ≥ 200 mm/√2
+    assert found["low"] == pytest.approx(0.2 / math.sqrt(2), rel=1e-5)
+    assert found["high"] == pytest.approx(0.2 * math.sqrt(2), rel=1e-5)
+    lengths = [0.05 * (16 ** (k / 80)) for k in range(81)]  # 50 mm … 800 mm, 3.5 % apart
+    good = brute_force(units, lengths)
+    assert good, "the scan found no focal length that meets both targets"
+    step = 16 ** (1 / 80)
+    # (a grid point falls on the closed-form end: the search ends within its tolerance of 1e-7 of it)
+    assert good[0] / step < found["low"] <= good[0] * (1 + 1e-6) and good[-1] * (1 - 1e-6) <= found["high"] < good[-1] * step
+    assert all(good[0] <= f <= good[-1] for f in good) and len(good) == sum(
+        1 for f in lengths if good[0] <= f <= good[-1])  # one interval, no holes
+
+
+def test_solve_in_words_and_with_a_set_value(spec):
+    code, out, _ = solve(str(spec), "--for", "lens.focal_length")
+    assert code == 0 and "every target is met and no error is reported for lens.focal_length 141.4 mm … 282.8 mm" \
+        in out and "(now 200 mm)" in out
+    # at half the energy the intensity needs f ≤ 200 mm: the range narrows to 141 … 200 mm
+    code, out, _ = solve(str(spec), "--for", "lens.focal_length", "--set", "laser.pulse_energy=50 µJ",
+                         "--format", "json")
+    assert json.loads(out)["high"] == pytest.approx(0.2, rel=1e-5)
+
+
+def test_an_empty_range_exits_1(tmp_path):
+    path = tmp_path / "never.yaml"
+    path.write_text(SPEC.replace("{intensity}", f"{2 * I0 / 1e4:.12g}").replace("{fluence}", f"{F0 / 1e4:.12g}"),
+                    encoding="utf-8")
+    # I ≥ 2 I0 needs f ≤ 141 mm, F ≤ F0 needs f ≥ 200 mm: no focal length does both
+    code, out, _ = solve(str(path), "--for", "lens.focal_length", "--format", "json")
+    assert code == 1 and json.loads(out) == {"input": "lens.focal_length", "low": None, "high": None, "unit": "m"}
+    code, out, _ = solve(str(path), "--for", "lens.focal_length")
+    assert code == 1 and "no value of lens.focal_length meets every target without an error" in out
+
+
+@pytest.mark.parametrize("argv, words", [
+    (["--for", "lens.focal_lenght"], "did you mean 'lens.focal_length'"),
+    (["--for", "lens.focal_length", "--set", "lens.focal_length=1 fs"], "is a time, expected a length"),
+    (["--for", "laser.pulse_shape"], "is not a number"),
+])
+def test_solve_usage_errors_exit_2(spec, argv, words):
+    code, out, err = solve(str(spec), *argv)
+    assert code == 2 and out == "" and words in err and "Traceback" not in err
+
+
+def test_solve_of_a_file_that_cannot_be_read_exits_2(tmp_path):
+    code, out, err = solve(str(tmp_path / "missing.yaml"), "--for", "laser.pulse_energy")
+    assert code == 2 and "cannot read" in err

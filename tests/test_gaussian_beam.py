@@ -157,3 +157,23 @@ def test_the_embedded_gaussian_rule_holds_for_a_beam_of_m2_three():
     for z in (0.1, 0.2, 0.24):
         numeric = _second_moment_radius(_propagate(field, span / n, z, LAM), x)
         assert numeric == pytest.approx(gb.radius(gb.apply(gb.free(z), q_lens), lam_eff), rel=3e-3)
+
+
+def test_the_carried_geometry_gives_the_same_numbers_and_the_focus_interval_of_the_closed_form():
+    from speccheck.physics import beam_geometry
+
+    # a 5 mm beam at 800 nm, M² 1.2, each ± its default tolerance, through f = 100 mm ± 1 % to its waist
+    d, lam, m2, f = (4.75e-3, 5e-3, 5.25e-3), (792e-9, 800e-9, 808e-9), (1.14, 1.2, 1.26), (0.099, 0.1, 0.101)
+    g = beam_geometry.start(d, lam, m2).step(lambda f: gb.lens(f), f=f).to_waists()
+    plane = g.plane()
+    q, lam_eff = g.q[0], g.lam[0]
+    assert plane["rayleigh_range"][1] == pytest.approx(gb.rayleigh_range(q))
+    assert plane["waist_diameter"][1] == pytest.approx(2 * gb.waist_radius(q, lam_eff))
+    assert plane["waist_distance"][1] == pytest.approx(gb.waist_ahead(q), abs=1e-15)
+    assert plane["wavefront_radius"][1] == math.inf
+    # the waist 4 M²λf/(πD) of a collimated beam (f ≪ z_R): the interval of interval arithmetic on the product
+    spot = g.diameter()
+    k = 4 / math.pi
+    assert spot[1] == pytest.approx(k * m2[1] * lam[1] * f[1] / d[1], rel=1e-4)
+    assert spot[0] == pytest.approx(k * m2[0] * lam[0] * f[0] / d[2], rel=1e-3)
+    assert spot[2] == pytest.approx(k * m2[2] * lam[2] * f[2] / d[0], rel=1e-3)

@@ -33,7 +33,7 @@ def test_free_space_matches_the_gaussian_beam_formulas():
 @pytest.mark.parametrize("s_over_f, zr_over_f", [(0.0, 50.0), (0.5, 0.2), (1.0, 1.0), (2.0, 0.3), (3.0, 5.0),
                                                  (-4.0, 0.7)])
 def test_a_lens_focuses_as_selfs_closed_form(s_over_f, zr_over_f):
-    # S. A. Self, Appl. Opt. 22, 658 (1983), eqs. (9b) and (10): an input waist a distance s before a
+    # S. A. Self, Appl. Opt. 22, 658 (1983), eqs. (9b) and (10) (numbers from memory): an input waist a distance s before a
     # thin lens f (Rayleigh range z_R) is imaged to a waist s'' after it with
     #   1/(s + z_R²/(s − f)) + 1/s'' = 1/f,   w0''/w0 = 1/√((1 − s/f)² + (z_R/f)²)
     f = 0.3
@@ -61,7 +61,7 @@ def test_a_plate_moves_a_focus_by_its_thickness_times_one_minus_one_over_n():
 
 def test_a_telescope_images_its_entrance_and_scales_q_by_m_squared():
     # two lenses f1, f2 = m f1 a distance f1 + f2 apart: ABCD (−m, f1 + f2, 0, −1/m) (Siegman, Lasers,
-    # ch. 15), i.e. the relay m² q after free space f1 (1 + m)/m, worked out by hand
+    # ch. 15, chapter from memory), i.e. the relay m² q after free space f1 (1 + m)/m, worked out by hand
     f1, m = 0.1, 3.0
     a, b, c, d = gb.telescope(f1, m)
     assert (a, b, c, d) == pytest.approx((-m, f1 * (1 + m), 0.0, -1.0 / m), abs=1e-15)
@@ -77,7 +77,7 @@ def test_a_beam_is_found_from_its_size_at_a_plane_and_its_waist_or_divergence():
     w = gb.radius(q, LAM)
     back = gb.at_plane(w, LAM, waist_after=-z)
     assert back == pytest.approx(q, rel=1e-9)
-    theta = 2 * LAM / (math.pi * w0)  # full angle of the 1/e² radius (Siegman, Lasers, ch. 17)
+    theta = 2 * LAM / (math.pi * w0)  # full angle of the 1/e² radius (Siegman, Lasers, ch. 17, chapter from memory)
     assert gb.from_divergence(w, LAM, theta) == pytest.approx(q, rel=1e-9)
     assert gb.divergence(q, LAM) == pytest.approx(theta / 2)
     assert gb.at_plane(1e-4, LAM, waist_after=10.0) is None  # too narrow this far from its waist
@@ -141,7 +141,7 @@ def test_abcd_agrees_with_the_angular_spectrum_of_a_sampled_beam_through_a_lens(
 
 
 def test_the_embedded_gaussian_rule_holds_for_a_beam_of_m2_three():
-    # A Hermite–Gaussian TEM10 mode has M²_x = 3 (Siegman, Lasers, ch. 17): its second-moment radius is
+    # A Hermite–Gaussian TEM10 mode has M²_x = 3 (Siegman, Lasers, ch. 17, chapter from memory): its second-moment radius is
     # √3 times that of its embedded Gaussian and it propagates as a Gaussian of wavelength 3λ.  The
     # sampled field goes through a lens by the angular spectrum; the rule is applied along x
     n, span = 512, 12e-3

@@ -162,7 +162,7 @@ def test_a_laser_waist_position_or_divergence_places_the_beam(check):
         path:
           - {name: far, kind: sample, distance: 10 m}
         """)
-    w0 = 2 * lam / (math.pi * 1e-3)  # θ = 2λ/(π w0), full angle (Siegman, Lasers, ch. 17)
+    w0 = 2 * lam / (math.pi * 1e-3)  # θ = 2λ/(π w0), full angle (Siegman, Lasers, ch. 17, chapter from memory)
     z0 = math.sqrt(w_out**2 - w0**2) / 0.5e-3
     assert cell(div, "beam_diameter", "far").value == pytest.approx(2 * _w(w0, z0 + 10, lam), rel=1e-6)
     bad = check("""

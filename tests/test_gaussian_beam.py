@@ -33,7 +33,7 @@ def test_free_space_matches_the_gaussian_beam_formulas():
 @pytest.mark.parametrize("s_over_f, zr_over_f", [(0.0, 50.0), (0.5, 0.2), (1.0, 1.0), (2.0, 0.3), (3.0, 5.0),
                                                  (-4.0, 0.7)])
 def test_a_lens_focuses_as_selfs_closed_form(s_over_f, zr_over_f):
-    # S. A. Self, Appl. Opt. 22, 658 (1983), eqs. (9b) and (10): an input waist a distance s before a
+    # S. A. Self, Appl. Opt. 22, 658 (1983), eqs. (9b) and (10) (numbers from memory): an input waist a distance s before a
     # thin lens f (Rayleigh range z_R) is imaged to a waist s'' after it with
     #   1/(s + z_R²/(s − f)) + 1/s'' = 1/f,   w0''/w0 = 1/√((1 − s/f)² + (z_R/f)²)
     f = 0.3
@@ -61,7 +61,7 @@ def test_a_plate_moves_a_focus_by_its_thickness_times_one_minus_one_over_n():
 
 def test_a_telescope_images_its_entrance_and_scales_q_by_m_squared():
     # two lenses f1, f2 = m f1 a distance f1 + f2 apart: ABCD (−m, f1 + f2, 0, −1/m) (Siegman, Lasers,
-    # ch. 15), i.e. the relay m² q after free space f1 (1 + m)/m, worked out by hand
+    # ch. 15, chapter from memory), i.e. the relay m² q after free space f1 (1 + m)/m, worked out by hand
     f1, m = 0.1, 3.0
     a, b, c, d = gb.telescope(f1, m)
     assert (a, b, c, d) == pytest.approx((-m, f1 * (1 + m), 0.0, -1.0 / m), abs=1e-15)
@@ -77,7 +77,7 @@ def test_a_beam_is_found_from_its_size_at_a_plane_and_its_waist_or_divergence():
     w = gb.radius(q, LAM)
     back = gb.at_plane(w, LAM, waist_after=-z)
     assert back == pytest.approx(q, rel=1e-9)
-    theta = 2 * LAM / (math.pi * w0)  # full angle of the 1/e² radius (Siegman, Lasers, ch. 17)
+    theta = 2 * LAM / (math.pi * w0)  # full angle of the 1/e² radius (Siegman, Lasers, ch. 17, chapter from memory)
     assert gb.from_divergence(w, LAM, theta) == pytest.approx(q, rel=1e-9)
     assert gb.divergence(q, LAM) == pytest.approx(theta / 2)
     assert gb.at_plane(1e-4, LAM, waist_after=10.0) is None  # too narrow this far from its waist
@@ -141,7 +141,7 @@ def test_abcd_agrees_with_the_angular_spectrum_of_a_sampled_beam_through_a_lens(
 
 
 def test_the_embedded_gaussian_rule_holds_for_a_beam_of_m2_three():
-    # A Hermite–Gaussian TEM10 mode has M²_x = 3 (Siegman, Lasers, ch. 17): its second-moment radius is
+    # A Hermite–Gaussian TEM10 mode has M²_x = 3 (Siegman, Lasers, ch. 17, chapter from memory): its second-moment radius is
     # √3 times that of its embedded Gaussian and it propagates as a Gaussian of wavelength 3λ.  The
     # sampled field goes through a lens by the angular spectrum; the rule is applied along x
     n, span = 512, 12e-3
@@ -157,3 +157,23 @@ def test_the_embedded_gaussian_rule_holds_for_a_beam_of_m2_three():
     for z in (0.1, 0.2, 0.24):
         numeric = _second_moment_radius(_propagate(field, span / n, z, LAM), x)
         assert numeric == pytest.approx(gb.radius(gb.apply(gb.free(z), q_lens), lam_eff), rel=3e-3)
+
+
+def test_the_carried_geometry_gives_the_same_numbers_and_the_focus_interval_of_the_closed_form():
+    from speccheck.physics import beam_geometry
+
+    # a 5 mm beam at 800 nm, M² 1.2, each ± its default tolerance, through f = 100 mm ± 1 % to its waist
+    d, lam, m2, f = (4.75e-3, 5e-3, 5.25e-3), (792e-9, 800e-9, 808e-9), (1.14, 1.2, 1.26), (0.099, 0.1, 0.101)
+    g = beam_geometry.start(d, lam, m2).step(lambda f: gb.lens(f), f=f).to_waists()
+    plane = g.plane()
+    q, lam_eff = g.q[0], g.lam[0]
+    assert plane["rayleigh_range"][1] == pytest.approx(gb.rayleigh_range(q))
+    assert plane["waist_diameter"][1] == pytest.approx(2 * gb.waist_radius(q, lam_eff))
+    assert plane["waist_distance"][1] == pytest.approx(gb.waist_ahead(q), abs=1e-15)
+    assert plane["wavefront_radius"][1] == math.inf
+    # the waist 4 M²λf/(πD) of a collimated beam (f ≪ z_R): the interval of interval arithmetic on the product
+    spot = g.diameter()
+    k = 4 / math.pi
+    assert spot[1] == pytest.approx(k * m2[1] * lam[1] * f[1] / d[1], rel=1e-4)
+    assert spot[0] == pytest.approx(k * m2[0] * lam[0] * f[0] / d[2], rel=1e-3)
+    assert spot[2] == pytest.approx(k * m2[2] * lam[2] * f[2] / d[0], rel=1e-3)

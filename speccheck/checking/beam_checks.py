@@ -27,7 +27,7 @@ def entrance_value(v, quantity: str) -> float | None:
 
 def clear_aperture(walk, v) -> None:
     """A circular aperture of radius a passes 1 − exp(−2a²/w²) of a Gaussian beam of 1/e² radius w
-    (the integral of the Gaussian profile over the disc; A. E. Siegman, Lasers, ch. 17): more than 1 %
+    (the integral of the Gaussian profile over the disc; A. E. Siegman, Lasers, ch. 17, chapter from memory): more than 1 %
     clipped, D_a < about 1.5 D, is a warning."""
     raw = v.stage.get("clear_aperture")
     g = v.beam.geometry

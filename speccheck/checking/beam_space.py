@@ -70,24 +70,15 @@ def at_laser(walk, beam: Beam) -> Beam:
     return optics.with_geometry(beam, g) if g is not None else beam
 
 
-# cell -> (the number at a plane from q and the effective wavelength, signed?)
-PATH_CELLS = {
-    "wavefront_radius": (lambda q, lam: gb.wavefront_radius(q), True),  # infinite at a waist
-    "rayleigh_range": (lambda q, lam: gb.rayleigh_range(q), False),
-    "waist_distance": (lambda q, lam: gb.waist_ahead(q), True),  # to the next waist; negative: behind
-    "waist_diameter": (lambda q, lam: 2.0 * gb.waist_radius(q, lam), False),
-}
-
-
 def cells(beam: Beam, units) -> dict:
-    """The path cells of the beam at a column's plane; none without a geometry.  An unbounded side
-    is None; an infinite typical value (a flat wavefront) stays infinite."""
+    """The path cells of the beam at a column's plane (``Geometry.plane``: wavefront radius, Rayleigh
+    range, the distance to the next waist, negative behind, and that waist's diameter); none without
+    a geometry.  An unbounded side is None; an infinite typical value (a flat wavefront) stays infinite."""
     g = beam.geometry
     if g is None:
         return {}
     out = {}
-    for name, (fn, signed) in PATH_CELLS.items():
-        low, typ, high = g.spread(fn, positive=not signed)
+    for name, (low, typ, high) in g.plane().items():
         typ += 0.0  # a waist here is 0, not −0
         ref = abs(typ) if math.isfinite(typ) and typ else 1e-3
         out[name] = Cell("derived", low if math.isfinite(low) else None, high if math.isfinite(high) else None,

@@ -235,8 +235,8 @@ class PathWalk:
         except NUMERIC_FAILURES as exc:  # a chirp its field cannot hold: said, and the path goes on without it
             self.report.add("out-of-model-range", f"laser: the field of its chirped pulse cannot be computed "
                             f"({_failure(exc)})", ("laser",), key=True)
-        beam = beam_space.at_laser(self, beam)
-        if self.data.get("path") and "laser" in self.sheet:
+        if self.data.get("path") and "laser" in self.sheet:  # the beam in space, where a path needs it
+            beam = beam_space.at_laser(self, beam)
             self.sheet["laser"].update(beam_space.cells(beam, self.c.units))
         if isinstance(self.data.get("path"), list) or isinstance(self.data.get("target"), dict):
             self.walk(self.data.get("path"), ("path",), beam, ["laser"], self.data.get("target"), ("target",))

@@ -3,7 +3,8 @@ typical values, and at each end of every tolerance that moves it.
 
 The tolerances are carried to first order, as a sensitivity analysis: each *source* (the laser's
 diameter, M², wavelength and waist, each lens's focal length, each distance) holds two states, q
-with that source at its low and at its high end and everything else typical.  A number at a plane
+with that source at its low and at its high end and everything else typical (λ and M² are one
+source, the effective wavelength M²λ, as they enter only as their product).  A number at a plane
 (the beam diameter, the Rayleigh range, …) is then its typical value with, on each side, the sum
 over the sources of the largest move either end makes that way: the worst case of interval
 arithmetic, taken to first order (for a positive number the moves combine as factors), so that a
@@ -20,12 +21,17 @@ from __future__ import annotations
 
 import math
 from dataclasses import dataclass, replace
+from functools import cached_property
 from typing import Callable
 
 from speccheck.physics import gaussian_beam as gb
 from speccheck.physics.beam import Beam, Value, typical
 
 PROBE = 2.0  # an open side is probed at this factor of the typical value
+
+
+def _diameter(q: complex, lam: float) -> float:
+    return 2.0 * gb.radius(q, lam)
 
 
 @dataclass(frozen=True)
@@ -46,32 +52,62 @@ class Geometry:
         """A number at this plane: (low, typical, high) by the sum of first-order moves.  Unbounded
         sides are 0 and inf for a positive number, -inf and inf for a signed one."""
         typ = fn(self.q[0], self.lam[0])
+        if not math.isfinite(typ):
+            return (0.0 if positive else -math.inf, typ, math.inf)
+        try:
+            xs = [fn(q, lam) if q is not None else math.nan for q, lam in zip(self.q, self.lam)]
+        except (ZeroDivisionError, ValueError, OverflowError):
+            return (0.0 if positive else -math.inf, typ, math.inf)
+        return self.combine(xs, positive)
+
+    def combine(self, xs: list, positive: bool) -> Value:
+        """(low, typical, high) of a number from its value in each state (``xs``, the typical first)."""
+        typ = xs[0]
         floor = 0.0 if positive else -math.inf
         if not math.isfinite(typ):
             return (floor, typ, math.inf)
         low = high = typ  # moves add up for a signed number; for a positive one they multiply (as factors
         # they are exact for a power law, like 4 M²λf/(πD), as the relation table's intervals are)
+        factors = positive and typ > 0.0
         for s in range(self.sources):
-            moves = []
-            for k, is_open in ((1 + 2 * s, s in self.open_low), (2 + 2 * s, s in self.open_high)):
-                try:
-                    x = fn(self.q[k], self.lam[k]) if self.q[k] is not None else math.nan
-                except (ZeroDivisionError, ValueError, OverflowError):
-                    x = math.nan
-                if not math.isfinite(x):
-                    return (floor, typ, math.inf)
-                if is_open:  # a probe: the way it moves the number is unbounded
-                    low, high = (floor if x < typ else low), (math.inf if x > typ else high)
-                moves.append(x - typ)
-            down, up = min(0.0, *moves), max(0.0, *moves)  # the larger move of the source's two ends, each way
-            if positive and typ > 0.0:
+            a, b = xs[1 + 2 * s] - typ, xs[2 + 2 * s] - typ
+            if not (math.isfinite(a) and math.isfinite(b)):
+                return (floor, typ, math.inf)
+            if s in self.open_low:  # a probe: the way it moves the number is unbounded
+                low, high = (floor if a < 0.0 else low), (math.inf if a > 0.0 else high)
+            if s in self.open_high:
+                low, high = (floor if b < 0.0 else low), (math.inf if b > 0.0 else high)
+            down, up = min(0.0, a, b), max(0.0, a, b)  # the larger move of the source's two ends, each way
+            if factors:
                 low, high = low * (1.0 + down / typ), high * (1.0 + up / typ)
             else:
                 low, high = low + down, high + up
         return (max(low, floor), typ, high)
 
+    def plane(self) -> dict:
+        """The numbers of each state at this plane in one pass (``gaussian_beam``'s formulas, inline):
+        wavefront radius R = z + z_R²/z (infinite at a waist), Rayleigh range, the distance to the
+        next waist −z, and the waist's 1/e² diameter 2√(lam z_R/π); each as (low, typical, high)."""
+        r, zr, ahead, waist = [], [], [], []
+        nan = math.nan
+        for q, lam in zip(self.q, self.lam):
+            if q is None or not q.imag > 0.0:
+                r.append(nan), zr.append(nan), ahead.append(nan), waist.append(nan)
+                continue
+            z, b = q.real, q.imag
+            r.append(z + b * b / z if z else math.inf)
+            zr.append(b)
+            ahead.append(-z)
+            waist.append(2.0 * math.sqrt(lam * b / math.pi))
+        return {"wavefront_radius": self.combine(r, False), "rayleigh_range": self.combine(zr, True),
+                "waist_distance": self.combine(ahead, False), "waist_diameter": self.combine(waist, True)}
+
+    @cached_property
+    def diameter_spread(self) -> Value:
+        return self.spread(_diameter)
+
     def diameter(self) -> Value:
-        return self.spread(lambda q, lam: 2.0 * gb.radius(q, lam))
+        return self.diameter_spread
 
     def step(self, matrix: Callable[..., gb.Matrix], **params: Value) -> "Geometry":
         """Every state through ``matrix(**params)`` at the typical values; each parameter with a
@@ -106,13 +142,17 @@ def start(d: Value, lam: Value, m2: Value | None, place: Callable[[float, float]
     m2 = (1.0, 1.0, math.inf) if m2 is None else m2
     if place is None:
         place, place_spread = (lambda w, lam_eff, x: gb.at_waist(w, lam_eff)), (0.0, 0.0, 0.0)
-    values = {"d": d, "lam": lam, "m2": m2, "x": place_spread}
+    if typical(lam) is None or typical(m2) is None:
+        return None
+    # λ and M² enter only as their product, the effective wavelength: one source
+    lam_eff = (lam[0] * m2[0], typical(lam) * typical(m2), lam[2] * m2[2])
+    values = {"d": d, "lam": lam_eff, "x": place_spread}
     typ = {k: typical(v) if k != "x" else v[1] for k, v in values.items()}
     if any(v is None for v in typ.values()):
         return None
 
     def state(v: dict) -> tuple:
-        lam_eff = v["m2"] * v["lam"]
+        lam_eff = v["lam"]
         try:
             return place(v["d"] / 2.0, lam_eff, v["x"]), lam_eff
         except (ZeroDivisionError, ValueError, OverflowError):
@@ -166,6 +206,8 @@ def travel(beam: Beam, distance: Value, ctx) -> Beam:
             ctx.note("the beam's geometry is not known before this stage: its diameter here is taken as a waist")
     if distance[2] > 0.0:
         g = g.step(gb.free, d=distance)
+    elif g is beam.geometry and g.entrance == g.q[0] and g.entrance_diameter is not None:
+        return beam  # no distance: the entrance is where the column before left the beam
     g = replace(g, entrance=g.q[0], entrance_diameter=g.diameter())
     return with_geometry(beam, g)
 
@@ -177,6 +219,8 @@ def follow_wavelength(before: Beam, after: Beam) -> Beam:
     if g is None:
         return after
     lam0, lam1 = before.get("wavelength"), after.get("wavelength")
+    if lam0 is lam1 and g is before.geometry and after.get("beam_diameter") is before.get("beam_diameter"):
+        return after  # nothing in space changed
     if lam1 is None or not typical(lam1):
         return with_geometry(after.with_values(beam_diameter=None), None)
     if lam0 and typical(lam0) and typical(lam1) != typical(lam0):

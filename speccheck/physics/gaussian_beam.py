@@ -5,7 +5,7 @@ Conventions (settled numerically in tests/test_gaussian_beam.py):
 * ``w`` is the 1/e² *intensity* radius (the beam diameter of the spec is 2w); for a beam with
   M² > 1 it is the second-moment radius of ISO 11146, which for a Gaussian is the 1/e² radius.
   The FWHM intensity diameter of a Gaussian is √(2 ln 2)·w ≈ 1.177 w (not used here).
-* The embedded-Gaussian rule (A. E. Siegman, *Lasers*, ch. 17, and IEEE J. Quantum Electron. 27,
+* The embedded-Gaussian rule (A. E. Siegman, *Lasers*, ch. 17 (chapter from memory), and IEEE J. Quantum Electron. 27,
   1146 (1991)): a real beam of quality M² propagates as a Gaussian whose wavelength is M²λ.  So
   every function takes ``lam``, the *effective* wavelength M²λ (in vacuum; a path in a medium of
   index n is taken as its reduced length L/n, below).

@@ -355,7 +355,7 @@ _SOURCES = {
     "spot-below-diffraction-limit": "Gaussian-beam optics (paraxial): 1/e² spot diameter 4 M² λ f / (π D)",
     "non-paraxial-focus": "Gaussian-beam optics: the paraxial approximation needs w0 ≫ λ/π; NA ≈ 0.4: common "
                           "practice",
-    "aperture-clipping": "the Gaussian profile integrated over a disc (A. E. Siegman, Lasers, ch. 17); 1 %: "
+    "aperture-clipping": "the Gaussian profile integrated over a disc (A. E. Siegman, Lasers, ch. 17, chapter from memory); 1 %: "
                          "common practice",
     "beam-geometry-impossible": "Gaussian-beam optics: w(z)² = w0² + (M²λz/(π w0))² (H. Kogelnik and T. Li, "
                                 "Appl. Opt. 5, 1550 (1966); the embedded Gaussian, A. E. Siegman, Lasers)",

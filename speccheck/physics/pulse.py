@@ -269,10 +269,7 @@ def at_laser(shape: str, tl: Value, duration: Value | None, omega0: float, chirp
     env = F.Envelope(tl[1], shape)
     made = dict(share=share)
     if gdd is not None:
-        terms = [T.Poly(2, gdd[1])] + ([T.Poly(3, tod[1])] if tod is not None else [])
-        window = Window((gdd[0] - gdd[1], gdd[2] - gdd[1]),
-                        (tod[0] - tod[1], tod[2] - tod[1]) if tod is not None else (0.0, 0.0))
-        return Pulse(env, omega0, tl, tuple(terms), (window,), **made), notes
+        return _stated_chirp(env, omega0, tl, gdd, tod, made), notes
     if tl_from == "duration":
         notes.append("the laser block states no bandwidth (or measured spectrum), so its pulse is taken as "
                      "transform limited; state spectral_bandwidth to carry its chirp")
@@ -285,21 +282,7 @@ def at_laser(shape: str, tl: Value, duration: Value | None, omega0: float, chirp
     corners = [B.gdd_for_duration(shape, t0, d) for t0 in (tl[0], tl[2]) for d in (duration[0], duration[2])
                if t0 > 0 and math.isfinite(t0) and math.isfinite(d) and d > 0]
     typ = B.gdd_for_duration(shape, tl[1], duration[1]) if duration[1] > tl[1] * 1.001 else 0.0
-    lo, hi = min(corners + [typ]), max(corners + [typ])
-    if hi <= 0.0:
-        return Pulse(env, omega0, tl, **made), notes
-    sign = -1.0 if chirp == "negative" else 1.0
-    terms = (T.Poly(2, sign * typ),)
-    window = Window((lo - typ, hi - typ) if sign > 0 else (-hi + typ, -lo + typ))
-    if chirp in ("positive", "negative"):
-        return Pulse(env, omega0, tl, terms, (window,), **made), notes
-    other = Window((-hi - typ, -lo - typ))
-    longer = ("the laser's pulse is longer than its transform limit" if typ > 0.0 else
-              "the laser's pulse may be longer than its transform limit within the tolerance of its duration")
-    notes.append(f"{longer} and the sign of its chirp is not stated, so every duration after a dispersive "
-                 "stage covers both signs (the typical value takes positive chirp, common practice); state "
-                 "laser.chirp: positive or negative")
-    return Pulse(env, omega0, tl, terms, (window, other), sign_unknown=True, **made), notes
+    return _chirped(env, omega0, tl, made, chirp, corners, typ, notes), notes
 
 
 def _measured(spectrum: tuple, tl: Value, duration: Value | None, omega0: float, chirp: str | None,
@@ -316,26 +299,13 @@ def _measured(spectrum: tuple, tl: Value, duration: Value | None, omega0: float,
              "duration"]
     made = dict(share=share)
     if gdd is not None:
-        terms = [T.Poly(2, gdd[1])] + ([T.Poly(3, tod[1])] if tod is not None else [])
-        window = Window((gdd[0] - gdd[1], gdd[2] - gdd[1]),
-                        (tod[0] - tod[1], tod[2] - tod[1]) if tod is not None else (0.0, 0.0))
-        return Pulse(env, omega0, tl, tuple(terms), (window,), **made), notes
+        return _stated_chirp(env, omega0, tl, gdd, tod, made), notes
     if duration is None or duration[1] is None or not all(math.isfinite(d) for d in (duration[0], duration[2])):
         return Pulse(env, omega0, tl, **made), notes
     corners = [_gdd_for(env, omega0, s, d) for s in (tl[0] / tl[1], tl[2] / tl[1]) for d in (duration[0], duration[2])
                if d > 0]
     typ = _gdd_for(env, omega0, 1.0, duration[1]) if duration[1] > env.tl * 1.001 else 0.0
-    lo, hi = min(corners + [typ]), max(corners + [typ])
-    if hi <= 0.0:
-        return Pulse(env, omega0, tl, **made), notes
-    sign = -1.0 if chirp == "negative" else 1.0
-    terms = (T.Poly(2, sign * typ),)
-    window = Window((lo - typ, hi - typ) if sign > 0 else (-hi + typ, -lo + typ))
-    if chirp in ("positive", "negative"):
-        return Pulse(env, omega0, tl, terms, (window,), **made), notes
-    notes.append("the sign of the laser's chirp is not stated, so every duration after a dispersive stage covers "
-                 "both signs (the typical value takes positive chirp, common practice)")
-    return Pulse(env, omega0, tl, terms, (window, Window((-hi - typ, -lo - typ))), sign_unknown=True, **made), notes
+    return _chirped(env, omega0, tl, made, chirp, corners, typ, notes), notes
 
 
 def _gdd_for(env: F.Envelope, omega0: float, scale: float, duration: float) -> float:
@@ -359,3 +329,31 @@ def _gdd_for(env: F.Envelope, omega0: float, scale: float, duration: float) -> f
         if hi - lo <= 1e-4 * hi:
             break
     return 0.5 * (lo + hi)
+
+
+def _stated_chirp(env: F.Envelope, omega0: float, tl: Value, gdd: Value, tod: Value | None, made: dict) -> Pulse:
+    """The pulse with the GDD (and TOD) the laser block states, their tolerances as its window."""
+    terms = [T.Poly(2, gdd[1])] + ([T.Poly(3, tod[1])] if tod is not None else [])
+    window = Window((gdd[0] - gdd[1], gdd[2] - gdd[1]),
+                    (tod[0] - tod[1], tod[2] - tod[1]) if tod is not None else (0.0, 0.0))
+    return Pulse(env, omega0, tl, tuple(terms), (window,), **made)
+
+
+def _chirped(env: F.Envelope, omega0: float, tl: Value, made: dict, chirp: str | None, corners: list,
+             typ: float, notes: list) -> Pulse:
+    """The pulse with the |GDD| ``typ`` that gives its duration (``corners``: at the tolerances' ends), of
+    the stated sign, or both signs (two windows, positive typical) with a note where none is stated."""
+    lo, hi = min(corners + [typ]), max(corners + [typ])
+    if hi <= 0.0:
+        return Pulse(env, omega0, tl, **made)
+    sign = -1.0 if chirp == "negative" else 1.0
+    terms = (T.Poly(2, sign * typ),)
+    window = Window((lo - typ, hi - typ) if sign > 0 else (-hi + typ, -lo + typ))
+    if chirp in ("positive", "negative"):
+        return Pulse(env, omega0, tl, terms, (window,), **made)
+    longer = ("the laser's pulse is longer than its transform limit" if typ > 0.0 else
+              "the laser's pulse may be longer than its transform limit within the tolerance of its duration")
+    notes.append(f"{longer} and the sign of its chirp is not stated, so every duration after a dispersive "
+                 "stage covers both signs (the typical value takes positive chirp, common practice); state "
+                 "laser.chirp: positive or negative")
+    return Pulse(env, omega0, tl, terms, (window, Window((-hi - typ, -lo - typ))), sign_unknown=True, **made)

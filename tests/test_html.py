@@ -410,7 +410,8 @@ def test_the_report_in_a_real_browser(browser, tmp_path, checker, request):
     assert details.find_element(By.CSS_SELECTOR, "p").is_displayed()  # the rule's explanation opens
     if has_matplotlib():
         plots = browser.find_elements(By.CSS_SELECTOR, "figure.plot svg")
-        assert len(plots) == 4  # pump-probe: pulse, spectrum, foci; the maker's sheet (no bandwidth): pulse
+        # pump-probe: pulse, spectrum, the field at each branch end, foci; the maker's sheet (no bandwidth): pulse
+        assert len(plots) == 5
         for svg in plots:  # drawn, not an empty box: glyphs and curves are there and have a size
             assert svg.size["width"] > 300 and svg.size["height"] > 100
             assert len(svg.find_elements(By.CSS_SELECTOR, "path")) > 20

@@ -9,6 +9,7 @@ import textwrap
 
 import pytest
 
+from focus_by_hand import diameter_for, focal_length_for, inverse_square_waist, m2_for, waist_radius
 from speccheck.checking.document import Checker, Options
 from speccheck.cli import run
 
@@ -93,9 +94,12 @@ FOCUSED = spec("""
 
 
 def focused_intensity(energy=100e-6, tau=300e-15, d=5e-3, f=0.2, t=0.5) -> float:
-    """By hand: the spot 2w0 = 4M²λf/(πD) (Gaussian-beam optics, Siegman ch. 17), I = 2 P_pk/(π w0²)."""
-    w0 = 2 * 1030e-9 * f / (math.pi * d)
+    """By hand: the waist behind a thin lens (Self 1983, in focus_by_hand), I = 2 P_pk/(π w0²)."""
+    w0 = waist_radius(d, f)
     return 2 * GAUSS * energy * t / tau / (math.pi * w0 ** 2)
+
+
+C0 = inverse_square_waist(5e-3, 0.2)  # 1/w0'² of FOCUSED as stated; I ∝ E/τ · 1/w0'²
 
 
 def test_remedies_through_a_focus_follow_e_d2_over_tau_f2(checker):
@@ -104,15 +108,16 @@ def test_remedies_through_a_focus_follow_e_d2_over_tau_f2(checker):
     result = checker.check_text(FOCUSED.replace("{need}", f"{need:.10g}"), "f.yaml")
     f = target_finding(result, "target-not-met")
     r = by_input(f)
-    assert r["lens.focal_length"].high == pytest.approx(0.2 / math.sqrt(k), rel=1e-6)
-    assert r["laser.beam_diameter"].low == pytest.approx(5e-3 * math.sqrt(k), rel=1e-6)
+    # far from the Rayleigh range these are 0.2/√k and 5 mm·√k; by the exact waist, solved by hand
+    assert r["lens.focal_length"].high == pytest.approx(focal_length_for(k * C0, 5e-3), rel=1e-6)
+    assert r["laser.beam_diameter"].low == pytest.approx(diameter_for(k * C0, 0.2), rel=1e-6)
     assert r["laser.pulse_energy"].low == pytest.approx(100e-6 * k, rel=1e-6)
     assert r["laser.pulse_duration"].high == pytest.approx(300e-15 / k, rel=1e-6)
     # a share of the beam: met from 0.75 up to all of it
     assert (r["attenuator.transmission"].low, r["attenuator.transmission"].high) == (pytest.approx(0.75), 1.0)
     # the mirror's default transmission is 1: it would need 1.5, so it is not offered
     assert "mirror.transmission" not in r
-    assert f"focal length ≤ {200 / math.sqrt(k):.4g} mm at 'lens'" in f.message
+    assert f"focal length ≤ {1e3 * focal_length_for(k * C0, 5e-3):.4g} mm at 'lens'" in f.message
 
 
 def test_a_defaulted_parameter_is_offered_where_a_value_it_can_take_meets_the_target(checker):
@@ -120,8 +125,8 @@ def test_a_defaulted_parameter_is_offered_where_a_value_it_can_take_meets_the_ta
     f = target_finding(checker.check_text(text, "f.yaml"), "target-not-met")
     mirror = by_input(f)["mirror.transmission"]
     assert not mirror.stated and mirror.high == pytest.approx(0.3, rel=1e-6) and mirror.value == 1.0
-    # the three smallest changes in words; I ∝ 1/M⁴ through the spot, so M² ≥ 0.3^(-1/2)
-    assert f"m2 ≥ {0.3 ** -0.5:.4g} at the laser" in f.message and "transmission" not in f.message
+    # the three smallest changes in words; far from z_R, I ∝ 1/M⁴ through the spot (M² ≥ 0.3^(-1/2))
+    assert f"m2 ≥ {m2_for(0.3 * C0, 5e-3, 0.2):.4g} at the laser" in f.message and "transmission" not in f.message
 
 
 # --- windows, and what no single input reaches ------------------------------------------------
@@ -180,7 +185,7 @@ def test_a_met_target_has_remedies_only_in_a_review(units):
     f = target_finding(Checker(units).check_text(text, "f.yaml"), "target-met")
     assert f.remedies is None
     f = target_finding(Checker(units, Options(remedies="all")).check_text(text, "f.yaml"), "target-met")
-    assert by_input(f)["lens.focal_length"].high == pytest.approx(0.2 * math.sqrt(2), rel=1e-6)
+    assert by_input(f)["lens.focal_length"].high == pytest.approx(focal_length_for(0.5 * C0, 5e-3), rel=1e-6)
     assert "It stays met with" in f.message
 
 

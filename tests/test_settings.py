@@ -9,6 +9,7 @@ from pathlib import Path
 
 import pytest
 
+from focus_by_hand import waist_radius
 from speccheck.checking.document import Checker, Options
 from speccheck.cli import run
 
@@ -129,15 +130,14 @@ def test_an_unstated_laser_quantity_or_stage_parameter_can_be_set(spec):
     code, doc = as_json("--set", "laser.m2=1.5", "--set", "lens.focal_length=100 mm", str(spec))
     sheet = doc["files"][0]["sheet"]
     assert sheet["laser"]["m2"]["set"] is True
-    # the spot 4M²λf/(πD) with M² 1.5 and f 100 mm, by hand
-    assert sheet["lens"]["beam_diameter"]["value"] == pytest.approx(4 * 1.5 * 1030e-9 * 0.1 / (3.14159265 * 3e-3),
-                                                                    rel=1e-5)
+    # the waist behind the lens with M² 1.5 and f 100 mm, by hand (about 4M²λf/(πD))
+    assert sheet["lens"]["beam_diameter"]["value"] == pytest.approx(2 * waist_radius(3e-3, 0.1, m2=1.5), rel=1e-6)
 
 
 def test_a_later_setting_of_one_input_wins(spec):
     code, doc = as_json("--set", "lens.focal_length=100 mm", "--set", "lens.focal_length=50 mm", str(spec))
     spot = doc["files"][0]["sheet"]["lens"]["beam_diameter"]["value"]
-    assert spot == pytest.approx(4 * 1030e-9 * 0.05 / (3.14159265 * 3e-3), rel=1e-5)
+    assert spot == pytest.approx(2 * waist_radius(3e-3, 0.05), rel=1e-6)
 
 
 def test_operating_point_quantities_are_inputs(units):

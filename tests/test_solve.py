@@ -10,6 +10,7 @@ import textwrap
 
 import pytest
 
+from focus_by_hand import focal_length_for, inverse_square_waist, waist_radius
 from speccheck.checking.document import Checker, Options
 from speccheck.cli import run
 
@@ -32,14 +33,16 @@ SPEC = "spec_version: 1\n" + textwrap.dedent("""\
 
 
 def at_focus(f: float) -> tuple[float, float]:
-    """Peak intensity and fluence at the focus, by hand (W/m², J/m²): the 1/e² spot radius
-    w0 = 2M²λf/(πD) (Gaussian-beam optics, Siegman, Lasers, ch. 17), F = 2E/(πw0²), I = 0.9394 F/τ."""
-    w0 = 2 * 1030e-9 * f / (math.pi * 5e-3)
+    """Peak intensity and fluence at the focus, by hand (W/m², J/m²): the 1/e² waist radius behind a
+    thin lens (Self 1983, in focus_by_hand; about 2M²λf/(πD)), F = 2E/(πw0²), I = 0.9394 F/τ."""
+    w0 = waist_radius(5e-3, f)
     fluence = 2 * 0.9 * 100e-6 / (math.pi * w0 ** 2)
     return 2 * math.sqrt(math.log(2) / math.pi) * fluence / 300e-15, fluence
 
 
 I0, F0 = at_focus(0.2)
+C0 = inverse_square_waist(5e-3, 0.2)  # I and F ∝ 1/w0'²
+LOW, HIGH = focal_length_for(2 * C0, 5e-3), focal_length_for(0.5 * C0, 5e-3)  # about 200 mm/√2 and √2·200 mm
 TEXT = SPEC.replace("{intensity}", f"{0.5 * I0 / 1e4:.12g}").replace("{fluence}", f"{2 * F0 / 1e4:.12g}")
 
 
@@ -76,9 +79,9 @@ def test_solve_on_a_path_agrees_with_a_brute_force_scan_and_the_closed_form(spec
     found = json.loads(out)
     assert list(found) == ["input", "low", "high", "unit"]
     assert found["input"] == "lens.focal_length" and found["unit"] == "m"
-    # I ∝ 1/f² and F ∝ 1/f²: I ≥ I0/2 for f ≤ √2·200 mm, F ≤ 2F0 for f ≥ 200 mm/√2
-    assert found["low"] == pytest.approx(0.2 / math.sqrt(2), rel=1e-5)
-    assert found["high"] == pytest.approx(0.2 * math.sqrt(2), rel=1e-5)
+    # I and F ∝ 1/w0'² (about 1/f²): I ≥ I0/2 for f ≤ HIGH, F ≤ 2F0 for f ≥ LOW
+    assert found["low"] == pytest.approx(LOW, rel=1e-5)
+    assert found["high"] == pytest.approx(HIGH, rel=1e-5)
     lengths = [0.05 * (16 ** (k / 80)) for k in range(81)]  # 50 mm … 800 mm, 3.5 % apart
     good = brute_force(units, lengths)
     assert good, "the scan found no focal length that meets both targets"
@@ -91,8 +94,8 @@ def test_solve_on_a_path_agrees_with_a_brute_force_scan_and_the_closed_form(spec
 
 def test_solve_in_words_and_with_a_set_value(spec):
     code, out, _ = solve(str(spec), "--for", "lens.focal_length")
-    assert code == 0 and "every target is met and no error is reported for lens.focal_length 141.4 mm … 282.8 mm" \
-        in out and "(now 200 mm)" in out
+    words = f"every target is met and no error is reported for lens.focal_length {LOW * 1e3:.1f} mm … {HIGH * 1e3:.1f} mm"
+    assert code == 0 and words in out and "(now 200 mm)" in out
     # at half the energy the intensity needs f ≤ 200 mm: the range narrows to 141 … 200 mm
     code, out, _ = solve(str(spec), "--for", "lens.focal_length", "--set", "laser.pulse_energy=50 µJ",
                          "--format", "json")

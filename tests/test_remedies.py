@@ -207,3 +207,37 @@ def test_remedies_in_json_have_exactly_the_documented_keys(tmp_path):
         out = io.StringIO()
         run(["check", "--no-config", "--format", fmt, str(path)], stdout=out)
         assert "Reach it with" in out.getvalue().replace("\n", " "), fmt
+
+
+def test_a_met_target_measures_each_remedy_against_where_it_stops_being_met(units):
+    from speccheck.checking.remedies import phrase
+
+    # met at twice what is needed: the attenuator (50 %) may go down to 25 %, and up to all of the
+    # beam, which is what a share can be, not where the target stops being met
+    text = FOCUSED.replace("{need}", f"{0.5 * focused_intensity() / 1e4:.10g}")
+    f = target_finding(Checker(units, Options(remedies="all")).check_text(text, "f.yaml"), "target-met")
+    share = by_input(f)["attenuator.transmission"]
+    assert (share.low, share.high, share.binding) == (pytest.approx(0.25, rel=1e-6), 1.0, (True, False))
+    assert phrase(units, share) == "transmission ≥ 25% at 'attenuator' (×0.5)"
+    # M² searched from its least value 1 (no error refuses it): open below, bounded above by the target
+    m2 = by_input(f)["laser.m2"]
+    assert m2.low is None and m2.binding == (False, True)
+    assert m2.high == pytest.approx(m2_for(0.5 * C0, 5e-3, 0.2), rel=1e-6)
+
+
+def test_the_search_tells_the_end_of_what_an_input_can_be_from_the_end_of_the_target():
+    from speccheck.checking import seek
+
+    calls = []
+
+    def line(t):  # a straight line in these coordinates, as through the relation table
+        calls.append(t)
+        return 2.0 * t
+
+    found = seek.seek(line, 0.0, 0.0, -3.0, 3.0, (-math.inf, 1.0), 0.1, 60)
+    assert found.high == pytest.approx(0.5, abs=1e-9) and found.low is None and found.domain == (False, False)
+    # the secant through two points lands past the bound at once: a handful of evaluations, not a walk
+    assert len(calls) <= 8
+    # where the function fails (an error at the input itself), the end is the input's, found by bisection
+    found = seek.seek(lambda t: t if t < 1.0 else None, 0.0, 0.0, -3.0, 3.0, (-math.inf, 5.0), 0.1, 60)
+    assert found.high == pytest.approx(1.0, abs=1e-3) and found.domain == (False, True)

@@ -142,7 +142,7 @@ class Checker:
         block = data.get("laser")
         if isinstance(block, dict):
             sheet["laser"] = BlockCheck(self, "laser", block, tolerance, report, notes=False).run()
-            check_path(self, data, tolerance, report, sheet, outcomes)
+            check_path(self, data, tolerance, report, sheet, outcomes, lean=True)
         return sheet, outcomes, report.findings
 
     def _safety(self, data: dict, sheet: dict, report: Report) -> None:

@@ -24,12 +24,14 @@ from dataclasses import dataclass
 from speccheck.checking.column import KEYS, NAMES
 from speccheck.checking.engine import evaluate, network_for
 from speccheck.physics.beam import CARRIED
+from speccheck.physics.limits import LIMITS
 from speccheck.physics.quantities import BY_NAME, CATEGORICAL, defaults_for
 from speccheck.physics.shapes import BEAM_PROFILES, DEFAULT_PROFILE, DEFAULT_SHAPE, PULSE_SHAPES
 from speccheck.physics.stages import PARAM_TOLERANCES, STAGE_KINDS
 from speccheck.reading.angles import parse_angle
 from speccheck.reading.loader import Limits, load
 from speccheck.reading.values import ValueProblem
+from speccheck.records.rules import RULES
 
 SIGNED = ("s^2", "s^3", "s^4")  # dimensions of parameters that may be negative (a GDD, TOD, FOD)
 _UNITS = {"angle": "rad"}  # the SI unit of a parameter dimension that is not a unit text
@@ -48,6 +50,7 @@ class Input:
     display_unit: str = ""  # the unit to show it in
     signed: bool = False  # may be negative (a GDD)
     highest: float = math.inf  # a share of the beam: at most 1
+    lowest: float = 0.0  # what a quantity's own limit allows (M² ≥ 1), where the same for every shape
     exact: bool = False  # a whole number by its nature (a pulse picker's divide_by, a harmonic order)
 
 
@@ -85,7 +88,17 @@ def _quantity(checker, column: str, key: str, at: tuple, block: dict) -> Input:
         except ValueProblem:
             pass
     unit = unit or (BY_NAME[key].display_unit if key in BY_NAME else "")
-    return Input(name, column, key, at, "quantity", si, key in block, value, unit)
+    return Input(name, column, key, at, "quantity", si, key in block, value, unit, lowest=_lowest(checker, key))
+
+
+def _lowest(checker, key: str) -> float:
+    """The least value of a quantity that no error refuses by its own limit (``physics.limits``), where
+    that limit is the same for every pulse shape and beam profile (M² ≥ 1); 0 where there is none."""
+    bounds = set()
+    for row in LIMITS:
+        if row.quantity == key and row.side == "min" and RULES[row.rule].severity == "error":
+            bounds |= {row.bound(checker.context(s, p)) for s in PULSE_SHAPES for p in BEAM_PROFILES}
+    return bounds.pop() if len(bounds) == 1 and None not in bounds else 0.0
 
 
 def _stages(checker, stages, at: tuple, out: dict) -> None:

@@ -37,9 +37,10 @@ from speccheck.records.findings import Remedy
 
 SPAN = math.log(30.0)  # positive inputs: searched from 1/30 to 30 times their value
 SIGNED_SPAN = 4.0  # signed inputs: ± this many times their size
-BUDGET = 96  # re-checks per target, at most, shared out evenly over the inputs it depends on
-PER_INPUT = 24  # …and at most this many per input
-DOCUMENT_BUDGET = 120  # …and per document, over all its targets
+BUDGET = 160  # re-checks per target, at most, shared out evenly over the inputs it depends on
+PER_INPUT = 32  # …and at most this many per input
+DOCUMENT_BUDGET = 160  # …and per document over its targets not met; a review adds this per met target…
+REVIEW_BUDGET = 480  # …up to this many
 SHOWN = 3  # remedies said in words (the smallest changes)
 UNSETTLED = "unsettled"  # the budget ran out before the search ended
 
@@ -47,8 +48,8 @@ UNSETTLED = "unsettled"  # the budget ran out before the search ended
 class Rechecks:
     """The document checked again with one input changed, each (input, value) once."""
 
-    def __init__(self, checker, doc, nominal: bool = True) -> None:
-        self.c, self.doc, self.data, self.nominal = checker, doc, doc.data, nominal
+    def __init__(self, checker, doc, nominal: bool = True, budget: int = DOCUMENT_BUDGET) -> None:
+        self.c, self.doc, self.data, self.nominal, self.budget = checker, doc, doc.data, nominal, budget
         self.table = overrides.inputs(checker, doc.data)
         self.done: dict = {}
         self.moves: dict = {}
@@ -75,7 +76,7 @@ class Rechecks:
         target has a value where an error is reported at the input itself (outside its domain)."""
         key = (inp.name, x)
         if key not in self.done:
-            if len(self.done) >= DOCUMENT_BUDGET:
+            if len(self.done) >= self.budget:
                 raise seek.Budget
             try:
                 with warnings.catch_warnings():  # far from the spec's values a formula may leave its domain
@@ -119,7 +120,9 @@ def domain(inp: overrides.Input):
         hi = min(hi, math.log(inp.highest))
     if inp.exact:
         lo = max(lo, 0.0)
-    return t0, lo, max(hi, t0), 0.1, math.exp
+    if inp.lowest > 0:
+        lo = max(lo, math.log(inp.lowest))
+    return t0, min(lo, t0), max(hi, t0), 0.1, math.exp
 
 
 def remedy_for(rechecks: Rechecks, inp: overrides.Input, at: tuple, need, value: float | None,
@@ -145,6 +148,7 @@ def remedy_for(rechecks: Rechecks, inp: overrides.Input, at: tuple, need, value:
         return None, used
     low = None if found.low is None or not found.reachable else to_x(found.low)
     high = None if found.high is None or not found.reachable else to_x(found.high)
+    binding = (low is not None and not found.domain[0], high is not None and not found.domain[1])
     reachable = found.reachable
     if found.reachable and math.isfinite(inp.highest) and found.high is None:
         high = inp.highest  # a share of the beam is met up to all of it
@@ -155,7 +159,7 @@ def remedy_for(rechecks: Rechecks, inp: overrides.Input, at: tuple, need, value:
     if not reachable and not inp.stated:
         return None, used  # a default offered only where a value it can take meets the target
     return Remedy(inp.name, inp.column, inp.parameter, low if reachable else None, high if reachable else None,
-                  inp.dimension, reachable, inp.stated, inp.value, inp.display_unit), used
+                  inp.dimension, reachable, inp.stated, inp.value, inp.display_unit, binding), used
 
 
 def depends(rechecks: Rechecks, inp: overrides.Input, at: tuple, value: float) -> bool:
@@ -197,9 +201,11 @@ def remedies_for(rechecks: Rechecks, outcome) -> tuple[tuple[Remedy, ...], list[
 def attach(checker, doc, outcomes: list, findings: list, every: bool) -> list:
     """The findings, those of targets not met (with ``every``, of every target the path
     determines) carrying their remedies and the smallest of them in words."""
-    rechecks = Rechecks(checker, doc)
+    met = sum(1 for o in outcomes if every and o.verdict != "not-met")
+    rechecks = Rechecks(checker, doc, budget=min(DOCUMENT_BUDGET * (1 + met), REVIEW_BUDGET))
     findings = list(findings)
-    for o in outcomes:
+    # the targets not met first: the re-checks a document allows go to them before the met ones
+    for o in sorted(outcomes, key=lambda o: o.verdict != "not-met"):
         if o.finding is None or o.verdict == "unknown" or not (every or o.verdict == "not-met"):
             continue
         found, cut = remedies_for(rechecks, o)
@@ -211,15 +217,25 @@ def attach(checker, doc, outcomes: list, findings: list, every: bool) -> list:
 # ------------------------------------------------------------------ wording
 
 def change(r: Remedy) -> float:
-    """How far the input has to move, as |ln| of a factor (0 inside the range)."""
+    """How far the input has to move, as |ln| of a factor; met now: the margin to the nearer end
+    where the target stops being met (inf where it has none)."""
+    x, end = r.value, _end(r)
+    return math.inf if not r.reachable or x is None or end is None else _distance(x, end)
+
+
+def _end(r: Remedy) -> float | None:
+    """The end of the remedy the input is measured against: the one it has to reach, or met now,
+    the nearer one where the target stops being met (an end that only says what the input can be,
+    a share at 1 or a pulse at its transform limit, is not one)."""
     x = r.value
-    if not r.reachable or x is None:
-        return math.inf
-    if (r.low is None or x >= r.low) and (r.high is None or x <= r.high):
-        ends = [e for e in (r.low, r.high) if e is not None]  # met: the margin to the nearer end
-        return min((_distance(x, e) for e in ends), default=math.inf)
-    end = r.low if r.low is not None and x < r.low else r.high
-    return _distance(x, end)
+    if x is None:
+        return None
+    if r.low is not None and x < r.low:
+        return r.low
+    if r.high is not None and x > r.high:
+        return r.high
+    ends = [e for e, b in zip((r.low, r.high), r.binding) if e is not None and b]
+    return min(ends, key=lambda e: _distance(x, e), default=None)
 
 
 def _distance(x: float, end: float) -> float:
@@ -247,7 +263,7 @@ def phrase(units, r: Remedy) -> str:
         text = f"{name} ≥ {v(r.low)}" if r.low != r.high else f"{name} {v(r.low)}"
     else:
         text = f"{name} ≤ {v(r.high)}"
-    end = r.low if r.low is not None and (x < r.low or r.high is None) else r.high
+    end = _end(r)
     signed = r.unit in overrides.SIGNED or r.unit == "rad"  # a factor says nothing of a signed number
     factor = f" (×{format_number(end / x, 3)})" if end and x and x > 0 and end > 0 and not signed else f" (now {v(x)})"
     default = "" if r.stated else ", not stated"
@@ -257,14 +273,17 @@ def phrase(units, r: Remedy) -> str:
 def words(units, found: tuple[Remedy, ...], outcome, cut=()) -> str:
     met = outcome.verdict == "met" or outcome.value is not None and outcome.need.low <= outcome.value \
         <= outcome.need.high
-    # a remedy open on both sides says nothing to do: met whatever the input
-    good = sorted((r for r in found if r.reachable and (r.low is not None or r.high is not None)), key=change)[:SHOWN]
+    # a remedy without an end where the target stops being met says nothing to do: met whatever the
+    # input (within what it can be); met now, the nearest such end first; not met, the smallest move
+    good = sorted((r for r in found if r.reachable and any(r.binding)), key=change)[:SHOWN]
     rest = f" (not settled within the re-checks allowed: {', '.join(cut)})" if cut else ""
     if not found:
         return (f" No remedy was settled within the re-checks allowed ({', '.join(cut)})." if cut else
                 "" if met else " No single input of the spec changes it.")
+    tried = ", ".join(r.input for r in found[:5]) + (", …" if len(found) > 5 else "")
+    if not good and met:
+        return f" It stays met over the whole range searched of each input tried ({tried}){rest}."
     if not good:
-        tried = ", ".join(r.input for r in found[:5]) + (", …" if len(found) > 5 else "")
         return f" No value of a single input was found to meet it in the range searched (tried: {tried}){rest}."
     parts = [phrase(units, r) for r in good]
     lead = " It stays met with " if met else " Reach it with "

@@ -19,6 +19,7 @@ from dataclasses import dataclass
 EPS = 1e-12  # in ln of the value: a value this close to a bound meets it
 CLOSE = 1e-7  # …and a met value this close to it (in ln) is taken as the boundary
 WIDTH = 1e-7  # a bracket this narrow (in t) is the boundary
+DOMAIN_WIDTH = 1e-4  # …and this narrow where g fails beyond it (the end of what the input can be: bisection)
 
 
 @dataclass
@@ -27,6 +28,7 @@ class Found:
     high: float | None
     reachable: bool
     depends: bool = True  # False: g does not change with t at all
+    domain: tuple[bool, bool] = (False, False)  # each end where g fails beyond it, not a bound of the band
 
 
 class Budget(Exception):
@@ -39,6 +41,7 @@ class Seeker:
         self.g, self.t0, self.lo, self.hi, self.band, self.step = g, t0, lo, hi, band, step
         self.left = budget
         self.seen: dict[float, float | None] = {t0: g0}
+        self.domain_ends: set[float] = set()  # the ends ``edge`` found against a point where g fails
 
     def at(self, t: float) -> float | None:
         t = min(max(t, self.lo), self.hi)
@@ -67,7 +70,7 @@ class Seeker:
         if ha is not None and abs(ha) <= CLOSE:
             return a
         for _ in range(60):
-            if abs(b - a) <= WIDTH * max(1.0, abs(a)):
+            if abs(b - a) <= (WIDTH if self.seen.get(b) is not None else DOMAIN_WIDTH) * max(1.0, abs(a)):
                 break
             t = (a + b) / 2.0
             if ha is not None and hb is not None and ha != hb:
@@ -87,10 +90,15 @@ class Seeker:
                 if last == -1 and ha is not None:
                     ha /= 2.0
                 last = -1
+        if self.seen.get(b) is None:
+            self.domain_ends.add(a)
         return a
 
     def outward(self, start: float, direction: int) -> float | None:
-        """From a point that meets the band, the boundary in ``direction`` (None: none in range)."""
+        """From a point that meets the band, the boundary in ``direction`` (None: none in range).
+        Steps grow threefold, or jump to just past where the secant through the last two points
+        meets the bound it heads for (a straight line, as through the relation table, is then
+        bracketed at once and ``edge`` lands on it in one step)."""
         step, t = self.step, start
         end = self.hi if direction > 0 else self.lo
         while (end - t) * direction > 0:
@@ -98,11 +106,27 @@ class Seeker:
             nxt = min(nxt, end) if direction > 0 else max(nxt, end)
             if not self.met(nxt):
                 return self.edge(t, nxt)
-            t, step = nxt, step * 3.0
+            t, step = nxt, max(step * 3.0, self._to_bound(t - direction * step, t, direction))
         return None
 
+    def _to_bound(self, a: float, b: float, direction: int) -> float:
+        """How far past b, in ``direction``, the secant through a and b crosses the bound it heads for
+        (2 % beyond it, to bracket it); 0 where there is none."""
+        ga, gb = self.seen.get(a), self.seen.get(b)
+        if ga is None or gb is None or ga == gb or a == b:
+            return 0.0
+        slope = (gb - ga) / (b - a)
+        bound = self.band[1] if slope * direction > 0 else self.band[0]
+        if bound in (float("inf"), float("-inf")):
+            return 0.0
+        reach = (bound - gb) / slope * direction
+        return 1.02 * reach + 1e-9 if reach > 0 else 0.0
+
     def component(self, t: float) -> Found:
-        return Found(self.outward(t, -1), self.outward(t, +1), True)
+        return self.found(self.outward(t, -1), self.outward(t, +1))
+
+    def found(self, low: float | None, high: float | None) -> Found:
+        return Found(low, high, True, domain=(low in self.domain_ends, high in self.domain_ends))
 
 
 def seek(g, t0: float, g0: float | None, lo: float, hi: float, band: tuple[float, float], step: float,
@@ -149,7 +173,7 @@ def _secant(s: Seeker, t0: float, g0: float, t1: float, g1: float) -> Found | No
             if any(s.met(t0 + (near - t0) * k / 3.0) for k in (1, 2)):
                 return None
             far = s.outward(t, 1 if up else -1)
-            return Found(near, far, True) if up else Found(far, near, True)
+            return s.found(near, far) if up else s.found(far, near)
         gt = s.at(t)
         if gt is None or t in (s.lo, s.hi) and t == tb:
             return None

@@ -41,7 +41,8 @@ def finish(walk, columns: list, beam: Beam, target, target_at: tuple, end_at: tu
         walk.ends.append(last)
     # what the branch's end is told is placed at its target, or without one at its last stage
     at = target_at if isinstance(target, dict) and target else end_at or target_at
-    compensation(walk, last, beam, at)
+    if not walk.lean:
+        compensation(walk, last, beam, at)
     strong_field(walk, last, target, at)
     judge(walk, columns, target, target_at)
 

@@ -56,6 +56,9 @@ class Remedy:
     stated: bool
     value: float | None = None
     display_unit: str = ""
+    # whether each end is where the target stops being met (True) or where the input stops being
+    # what it can be (False: a share of the beam at 1, a pulse at its transform limit)
+    binding: tuple[bool, bool] = (True, True)
 
 
 class Cell(NamedTuple):

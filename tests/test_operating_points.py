@@ -67,3 +67,49 @@ def test_an_unknown_key_in_a_point_is_suggested(check):
     result = check(SHEET.replace("    pulse_energy: 20 µJ", "    pulse_enegry: 20 µJ"))
     (finding,) = result.findings
     assert finding.rule == "unknown-key" and "pulse_energy" in finding.message and finding.line == 13
+
+
+# --- a target is judged at every point --------------------------------------------------------
+
+SECH2 = 0.8814  # P_pk·τ/E of a sech² pulse (FWHM τ): 2·arccosh(√2)/2 … published pulse-shape tables
+
+TARGETED = SHEET.replace('">= 150 µJ"', "150 µJ") + """
+target:
+  peak_power: ">= 100 MW"
+"""
+
+
+def targets(result):
+    return [(f.rule, f.message) for f in result.findings if f.rule.startswith("target-")]
+
+
+def test_a_target_met_at_one_point_and_not_at_another_says_so_at_each(check):
+    result = check(TARGETED.replace("<= 20 W", "<= 200 W"))
+    said = targets(result)
+    # by hand: 150 µJ → 0.8814 × 150 µJ / 300 fs = 441 MW (met); 20 µJ → 58.8 MW (not met)
+    assert any(r == "target-met" and m.startswith("at operating point '100 kHz'") and "440.7 MW" in m for r, m in said)
+    [miss] = [f for f in result.findings if f.rule == "target-not-met"]
+    assert miss.message.startswith("at operating point '1 MHz': target peak_power >= 100 MW is not met at this point")
+    assert miss.line == 16  # the target's line
+    # the point's own energy is offered: E ≥ P·τ/0.8814 = 34 µJ (34 W at 1 MHz), by hand, up to the
+    # 200 µJ that the sheet's 200 W allows at 1 MHz (the end of what it can be, not of the target);
+    # the laser block has no rate or energy of its own, so its own verdict (not determined) is not said
+    remedy = {r.input: r for r in miss.remedies}["1 MHz.pulse_energy"]
+    assert remedy.low == pytest.approx(100e6 * 300e-15 / SECH2, rel=2e-3)
+    assert remedy.high == pytest.approx(200e-6, rel=1e-3) and remedy.binding == (True, False)
+    assert not any(r == "target-unknown" for r, _ in said)
+
+
+def test_a_point_whose_values_contradict_each_other_is_not_judged(check):
+    result = check(TARGETED.replace("pulse_energy: 150 µJ", "pulse_energy: 300 µJ"))
+    [unknown] = [m for r, m in targets(result) if r == "target-unknown"]
+    assert unknown.startswith("at operating point '100 kHz'") and "contradict each other (line 9)" in unknown
+
+
+def test_a_remedy_beyond_the_sheets_own_limit_is_not_offered(check):
+    # at 1 MHz, 34 µJ would be 34 W: beyond the sheet's 20 W maximum, so no energy of the point
+    # meets the target; a shorter pulse does: P = 0.8814 E/τ, so τ ≤ 0.8814 × 20 µJ / 100 MW (by hand)
+    [miss] = [f for f in check(TARGETED).findings if f.rule == "target-not-met"]
+    remedies = {r.input: r for r in miss.remedies}
+    assert not remedies["1 MHz.pulse_energy"].reachable
+    assert remedies["laser.pulse_duration"].high == pytest.approx(SECH2 * 20e-6 / 100e6, rel=2e-3)

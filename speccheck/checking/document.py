@@ -109,11 +109,18 @@ class Checker:
 
                     outcomes: list = []
                     ends, fields = check_path(self, data, tolerance, report, sheet, outcomes)
+                    drop: set = set()
+                    if report.points and (outcomes or data.get("path")):  # the path at every operating point too
+                        from speccheck.checking.point_paths import unjudged, walk_points
+
+                        walk_points(self, data, tolerance, report, dict(report.points), outcomes)
+                        drop = unjudged(outcomes)
                     if remedies and self._wants_remedies(outcomes):
                         from speccheck.checking import remedies
 
                         report.findings = remedies.attach(self, doc, outcomes, report.findings,
                                                           self.options.remedies == "all")
+                    report.findings = [f for k, f in enumerate(report.findings) if k not in drop]
             if sheet:
                 self._safety(data, sheet, report)
         findings = tuple(sorted(report.findings, key=Finding.sort_key))
@@ -125,9 +132,10 @@ class Checker:
         mode = self.options.remedies
         return mode == "all" and bool(outcomes) or mode == "unmet" and any(o.verdict == "not-met" for o in outcomes)
 
-    def rerun(self, doc, data: dict, nominal: bool = False) -> tuple[dict, list, list]:
+    def rerun(self, doc, data: dict, nominal: bool = False, point: int | None = None) -> tuple[dict, list, list]:
         """The laser column and the path of ``data`` (the document with an input changed) checked
-        again, for the remedies: (sheet, the targets' outcomes, findings).  ``doc`` gives places.
+        again, for the remedies: (sheet, the targets' outcomes, findings).  ``doc`` gives places;
+        ``point``: the path walked at that operating point (its values over the laser block's).
         ``nominal``: every plain value exact (no default tolerance), so that each interval is the
         nominal value alone and the pulse's field is computed once per column, not per corner;
         the nominal values are the same, and values that agree only within tolerances conflict."""
@@ -140,7 +148,16 @@ class Checker:
         sheet: dict = {}
         outcomes: list = []
         block = data.get("laser")
-        if isinstance(block, dict):
+        if isinstance(block, dict) and point is not None:  # the path at an operating point
+            from speccheck.checking import point_paths
+
+            check = point_paths.laser_column(self, data, point, tolerance, report)
+            sheet["laser"] = check.run()
+            # a value beyond the sheet's own limits is outside what the point can be
+            self._sheet_limits("laser", block, data["operating_points"][point], point, check, report)
+            data = {**data, "laser": point_paths.merged(data, point)}
+            check_path(self, data, tolerance, report, sheet, outcomes, lean=True)
+        elif isinstance(block, dict):
             sheet["laser"] = BlockCheck(self, "laser", block, tolerance, report, notes=False).run()
             check_path(self, data, tolerance, report, sheet, outcomes, lean=True)
         return sheet, outcomes, report.findings
@@ -193,7 +210,7 @@ class Checker:
             paths[""] = ("operating_points", i)
             check = BlockCheck(self, name, merged, tolerance, report, paths, notes=False)  # noted once, at the laser
             sheet[name] = check.run()
-            report.points.add(name)
+            report.points[name] = i
             self._sheet_limits(name, block, point, i, check, report)
         report.dedupe = False
 

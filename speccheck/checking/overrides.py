@@ -191,6 +191,16 @@ def replaced(data: dict, at: tuple, value, drop: tuple = ()) -> dict:
     return put(data, tuple(at))
 
 
+def merged(data: dict, index: int) -> dict:
+    """The laser block with operating point ``index``'s values over it (its name left out)."""
+    block = data.get("laser") if isinstance(data.get("laser"), dict) else {}
+    points = data.get("operating_points")
+    point = points[index] if isinstance(points, list) and 0 <= index < len(points) else None
+    if not isinstance(point, dict):
+        return dict(block)
+    return {**block, **{k: v for k, v in point.items() if k != "name"}}
+
+
 def moved(checker, block: dict, key: str) -> tuple[str, ...]:
     """The stated keys of ``block`` that the value of ``key`` and the values before them (in the
     order above) determine: the ones that move with it."""

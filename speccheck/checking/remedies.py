@@ -54,34 +54,37 @@ class Rechecks:
         self.done: dict = {}
         self.moves: dict = {}
 
-    def base(self, at: tuple) -> float | None:
+    def base(self, at: tuple, point: int | None = None) -> float | None:
         """The target's value in a re-check of the document as it is (the reference of a search:
         a nominal re-check may differ from the check's own value in the last digits)."""
-        if "base" not in self.moves:
-            _, outcomes, _ = self.c.rerun(self.doc, self.data, self.nominal)
-            self.moves["base"] = {o.at: o.value for o in outcomes}
-        return self.moves["base"].get(at)
+        if ("base", point) not in self.moves:
+            _, outcomes, _ = self.c.rerun(self.doc, self.data, self.nominal, point)
+            self.moves["base", point] = {o.at: o.value for o in outcomes}
+        return self.moves["base", point].get(at)
 
     def with_value(self, inp: overrides.Input, x: float) -> dict:
         unit = "" if inp.dimension == "1" else " " + inp.dimension
         raw = x if inp.dimension == "1" and inp.kind != "angle" else f"{x!r}{unit}"
         if inp.name not in self.moves:  # what moves with it: found with the input stated
             placed = overrides.replaced(self.data, inp.at, raw)
-            self.moves[inp.name] = overrides.moved(self.c, placed.get("laser"), inp.parameter) \
-                if inp.column == "laser" else ()
+            block = placed.get("laser") if inp.column == "laser" else overrides.merged(placed, inp.at[1]) \
+                if inp.at[0] == "operating_points" else None
+            self.moves[inp.name] = overrides.moved(self.c, block, inp.parameter) if block is not None else ()
         return overrides.replaced(self.data, inp.at, raw, self.moves[inp.name])
 
-    def run(self, inp: overrides.Input, x: float):
-        """(value of each target by its place, whether any error was reported) with ``inp`` at x; no
-        target has a value where an error is reported at the input itself (outside its domain)."""
-        key = (inp.name, x)
+    def run(self, inp: overrides.Input, x: float, point: int | None = None):
+        """(value of each target by its place, whether any error was reported) with ``inp`` at x (the
+        path walked at operating point ``point``); no target has a value where an error is reported
+        at the input itself (outside its domain)."""
+        key = (inp.name, x, point)
         if key not in self.done:
             if len(self.done) >= self.budget:
                 raise seek.Budget
             try:
                 with warnings.catch_warnings():  # far from the spec's values a formula may leave its domain
                     warnings.simplefilter("ignore")
-                    sheet, outcomes, findings = self.c.rerun(self.doc, self.with_value(inp, x), self.nominal)
+                    sheet, outcomes, findings = self.c.rerun(self.doc, self.with_value(inp, x), self.nominal,
+                                                             point)
                 places = {self.doc.where(inp.at), self.doc.where(inp.at, key=True)}
                 errors = [f for f in findings if f.severity == "error"]
                 # (exact values conflict where they agree only within tolerances: not a domain's end)
@@ -93,13 +96,17 @@ class Rechecks:
         return self.done[key]
 
 
-def candidates(table: dict, columns: tuple) -> list[overrides.Input]:
-    """The inputs a target of a branch with these columns may depend on, with a nominal value."""
+def candidates(table: dict, columns: tuple, point: tuple | None = None, own: tuple = ()) -> list[overrides.Input]:
+    """The inputs a target of a branch with these columns may depend on, with a nominal value; at
+    an operating point (``point``: index and name; ``own``: the keys it states), its own values
+    and the laser block's others."""
     out = []
     for inp in table.values():
         if inp.kind not in ("quantity", "number", "angle") or inp.value is None:
             continue
-        if inp.column == "laser" and inp.stated and inp.parameter not in CARRIER and (inp.value > 0 or inp.signed):
+        of_point = point is not None and inp.column == point[1] and inp.at[:2] == ("operating_points", point[0])
+        if (inp.column == "laser" and inp.parameter not in own or of_point) and inp.stated \
+                and inp.parameter not in CARRIER and (inp.value > 0 or inp.signed):
             out.append(inp)
         elif inp.column in columns and inp.column != "laser" and (inp.value > 0 or inp.signed):
             out.append(inp)
@@ -126,7 +133,7 @@ def domain(inp: overrides.Input):
 
 
 def remedy_for(rechecks: Rechecks, inp: overrides.Input, at: tuple, need, value: float | None,
-               budget: int) -> tuple[Remedy | None, int]:
+               budget: int, point: int | None = None) -> tuple[Remedy | None, int]:
     """The remedy of one input for the target at ``at`` (None: it does not depend on it), and the
     re-checks it used."""
     if value is None or value <= 0.0:
@@ -137,7 +144,7 @@ def remedy_for(rechecks: Rechecks, inp: overrides.Input, at: tuple, need, value:
     before = len(rechecks.done)
 
     def g(t: float):
-        got = rechecks.run(inp, to_x(t))[0].get(at)
+        got = rechecks.run(inp, to_x(t), point)[0].get(at)
         return math.log(got) if got is not None and got > 0 else None
 
     found = seek.seek(g, t0, math.log(value), lo, hi, band, step, min(budget, PER_INPUT))
@@ -162,13 +169,13 @@ def remedy_for(rechecks: Rechecks, inp: overrides.Input, at: tuple, need, value:
                   inp.dimension, reachable, inp.stated, inp.value, inp.display_unit, binding), used
 
 
-def depends(rechecks: Rechecks, inp: overrides.Input, at: tuple, value: float) -> bool:
+def depends(rechecks: Rechecks, inp: overrides.Input, at: tuple, value: float, point: int | None = None) -> bool:
     """Whether the target at ``at`` moves when the input moves by one first step either way (the
     same points the search starts from, so they are checked once)."""
     t0, lo, hi, step, to_x = domain(inp)
     for t in (t0 + step, t0 - step):
         if lo <= t <= hi:
-            got = rechecks.run(inp, to_x(t))[0].get(at)
+            got = rechecks.run(inp, to_x(t), point)[0].get(at)
             if got is None or abs(math.log(got / value) if got > 0 else math.inf) >= seek.EPS:
                 return True
     return False
@@ -178,19 +185,21 @@ def remedies_for(rechecks: Rechecks, outcome) -> tuple[tuple[Remedy, ...], list[
     """The remedy of each input the target depends on, the budget of re-checks shared out evenly;
     and the inputs it depends on whose search the budget cut short."""
     start = len(rechecks.done)
-    value = rechecks.base(outcome.at)
+    index = outcome.point[0] if outcome.point else None
+    value = rechecks.base(outcome.at, index)
     if value is None or value <= 0:
         return (), []
+    own = tuple(k for k in rechecks.data["operating_points"][index] if k != "name") if outcome.point else ()
     try:
-        chosen = [inp for inp in candidates(rechecks.table, outcome.columns)
-                  if len(rechecks.done) - start < BUDGET and depends(rechecks, inp, outcome.at, value)]
+        chosen = [inp for inp in candidates(rechecks.table, outcome.columns, outcome.point, own)
+                  if len(rechecks.done) - start < BUDGET and depends(rechecks, inp, outcome.at, value, index)]
     except seek.Budget:
         return (), ["every input"]
     out, cut = [], []
     for k, inp in enumerate(chosen):
         left = BUDGET - (len(rechecks.done) - start)
         remedy, _ = remedy_for(rechecks, inp, outcome.at, outcome.need, value,
-                               max(left // (len(chosen) - k), 4))
+                               max(left // (len(chosen) - k), 4), index)
         if remedy == UNSETTLED:
             cut.append(inp.name)
         elif remedy is not None:

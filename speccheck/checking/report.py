@@ -39,7 +39,7 @@ class Report:
         self.findings: list[Finding] = []
         self.seen: set = set()
         self.dedupe = False
-        self.points: set[str] = set()  # names of the operating-point columns
+        self.points: dict[str, int] = {}  # the operating-point columns: name → index in the document
 
     def add(self, rule_id: str, message: str, at=(), *, key: bool = False, line=None, column=None,
             quantities=(), suspect=None, candidates=(), cause=None, likely=False, related=(),

@@ -31,7 +31,11 @@ class Solution:
 
 
 def solve(checker, doc, name: str, result) -> Solution:
-    rechecks = Rechecks(checker, doc, nominal=False)  # "no error" needs the tolerances of the spec
+    points = doc.data.get("operating_points") if isinstance(doc.data, dict) else None
+    points = [i for i, p in enumerate(points) if isinstance(p, dict)] if isinstance(points, list) else []
+    # "no error" needs the tolerances of the spec; each value is checked at the laser block and
+    # at every operating point (the path walked at each, as the check does)
+    rechecks = Rechecks(checker, doc, nominal=False, budget=BUDGET * (1 + len(points)))
     inp = overrides.find(rechecks.table, name)
     if inp.kind not in ("quantity", "number", "angle"):
         raise overrides.SettingProblem(f"{name} is not a number; solve finds the range of a number")
@@ -44,13 +48,19 @@ def solve(checker, doc, name: str, result) -> Solution:
     if not inp.signed and inp.value <= 0:
         raise overrides.SettingProblem(f"{name} is {inp.value:g}: solve needs a positive value to start from")
     t0, lo, hi, step, to_x = domain(inp)
-    _, outcomes, _ = checker.rerun(doc, doc.data)
-    targets = [(o.at, o.need) for o in outcomes]
+    targets = {}
+    for point in [None] + points:
+        _, outcomes, _ = checker.rerun(doc, doc.data, point=point)
+        # with operating points, a target the laser block alone does not determine is theirs to meet
+        targets[point] = [(o.at, o.need) for o in outcomes if not (point is None and points and o.value is None)]
 
     def ok(t: float) -> float:
-        values, error = rechecks.run(inp, to_x(t))
-        met = all(values.get(at) is not None and need.low <= values[at] <= need.high for at, need in targets)
-        return 0.0 if met and not error else 1.0
+        for point, wanted in targets.items():
+            values, error = rechecks.run(inp, to_x(t), point)
+            if error or not all(values.get(at) is not None and need.low <= values[at] <= need.high
+                                for at, need in wanted):
+                return 1.0
+        return 0.0
 
     found = seek.region(ok, t0, ok(t0), lo, hi, (-0.5, 0.5), step, BUDGET)
     if found is None or not found.reachable:

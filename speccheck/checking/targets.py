@@ -27,6 +27,7 @@ class Outcome:
     value: float | None
     verdict: str  # "met" | "not-met" | "uncertain" | "unknown"
     finding: int | None = None
+    point: tuple | None = None  # (index, column name) of the operating point walked; None: the laser block
 
 
 def _record(walk, where, last, columns, need, value, verdict, before: int) -> None:

@@ -10,6 +10,20 @@ is more than the tests' tolerances. This is the closed form the path's ABCD prop
 from __future__ import annotations
 
 import math
+import textwrap
+
+# The laser of the focus tests (remedies, solve): 100 µJ, 300 fs Gaussian, 5 mm at its waist, M² 1,
+# as the top of a spec; a test adds its path and targets.
+FOCUS_LASER = "spec_version: 1\n" + textwrap.dedent("""\
+    laser:
+      wavelength: 1030 nm
+      repetition_rate: 10 kHz
+      pulse_energy: 100 µJ
+      pulse_duration: 300 fs
+      pulse_shape: gaussian
+      beam_diameter: 5 mm
+      m2: 1
+    """)
 
 
 def waist_radius(diameter: float, f: float, wavelength: float = 1030e-9, m2: float = 1.0) -> float:

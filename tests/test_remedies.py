@@ -9,7 +9,7 @@ import textwrap
 
 import pytest
 
-from focus_by_hand import diameter_for, focal_length_for, inverse_square_waist, m2_for, waist_radius
+from focus_by_hand import FOCUS_LASER, diameter_for, focal_length_for, inverse_square_waist, m2_for, waist_radius
 from speccheck.checking.document import Checker, Options
 from speccheck.cli import run
 
@@ -75,15 +75,7 @@ def test_a_remedy_end_meets_the_target_when_set(checker, units):
 
 # --- through the path: a focus, intensity ∝ E D² / (τ f²) -----------------------------------
 
-FOCUSED = spec("""
-    laser:
-      wavelength: 1030 nm
-      repetition_rate: 10 kHz
-      pulse_energy: 100 µJ
-      pulse_duration: 300 fs
-      pulse_shape: gaussian
-      beam_diameter: 5 mm
-      m2: 1
+FOCUSED = FOCUS_LASER + textwrap.dedent("""\
     path:
       - {name: attenuator, kind: attenuator, transmission: 50%}
       - {name: mirror, kind: optic}

@@ -10,19 +10,11 @@ import textwrap
 
 import pytest
 
-from focus_by_hand import focal_length_for, inverse_square_waist, waist_radius
+from focus_by_hand import FOCUS_LASER, focal_length_for, inverse_square_waist, waist_radius
 from speccheck.checking.document import Checker, Options
 from speccheck.cli import run
 
-SPEC = "spec_version: 1\n" + textwrap.dedent("""\
-    laser:
-      wavelength: 1030 nm
-      repetition_rate: 10 kHz
-      pulse_energy: 100 µJ
-      pulse_duration: 300 fs
-      pulse_shape: gaussian
-      beam_diameter: 5 mm
-      m2: 1
+SPEC = FOCUS_LASER + textwrap.dedent("""\
     path:
       - {name: mirror, kind: optic, transmission: 90%}
       - {name: lens, kind: focus, focal_length: 200 mm}

@@ -138,6 +138,18 @@ def test_a_clear_aperture_that_clips_more_than_one_percent_is_a_warning(check, a
     assert bool(found) == clips
     if clips:  # exp(−2 (a/w)²) with a = 5 mm, w = 4 mm: 4.39 % (the Gaussian integrated over the disc)
         assert f"{100 * math.exp(-2 * (5 / 4) ** 2):.3g}%" in found[0].message
+    # and the numbers after it count the loss: the energy is 1 mJ times what the disc passes
+    a = float(aperture.split()[0]) / 2
+    share = integrated_share(a, 4.0)
+    assert cell(r, "pulse_energy", "mirror").value == pytest.approx(1e-3 * share, rel=1e-9)
+
+
+def integrated_share(radius: float, w: float) -> float:
+    """The power of a Gaussian of 1/e² radius w inside a disc, by quadrature of 2πr I(r) (no closed form
+    used): the independent check of 1 − exp(−2a²/w²)."""
+    r = np.linspace(0.0, radius, 200001)
+    total = np.pi * w**2 / 2  # ∫ exp(−2r²/w²) 2πr dr over the plane
+    return float(np.trapezoid(np.exp(-2 * r**2 / w**2) * 2 * np.pi * r, r) / total)
 
 
 def test_a_laser_waist_position_or_divergence_places_the_beam(check):

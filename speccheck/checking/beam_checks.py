@@ -7,6 +7,7 @@ from __future__ import annotations
 import math
 
 from speccheck.physics import gaussian_beam as gb
+from speccheck.physics.beam import transmit
 from speccheck.reading.values import ValueProblem
 
 NA_NOTE_FROM = 0.4  # a focusing NA above about this leaves the paraxial spot and intensity (common practice)
@@ -23,6 +24,32 @@ def entrance_value(v, quantity: str) -> float | None:
     if g is None or g.entrance_diameter is None or not (d_before and d_before.value):
         return cell.value
     return cell.value * (d_before.value / g.entrance_diameter[1]) ** 2
+
+
+def passed(a: float, d: float) -> float:
+    """The share of a Gaussian beam of 1/e² diameter d that a circular aperture of diameter a passes:
+    1 − exp(−2a²/d²), i.e. 1 − exp(−2r²/w²) with r, w the radii (the profile integrated over the disc)."""
+    return -math.expm1(-2.0 * (a / d) ** 2) if d > 0 else 1.0
+
+
+def through_aperture(walk, stage: dict, beam):
+    """The beam after a stage's clear aperture: its energy, power and peak power scaled by the share
+    the aperture passes (``passed``, at the entrance diameter, over the tolerances of both); the beam
+    is taken on as the same Gaussian (the diffraction of its clipped edge is not modelled: the
+    warning of ``clear_aperture`` says so).  A value that cannot be read is said by that check."""
+    raw = stage.get("clear_aperture")
+    g = beam.geometry
+    if raw is None or g is None or g.entrance_diameter is None:
+        return beam
+    try:
+        s = walk.c.values.parse_as("clear_aperture", raw, "m", walk.param_tolerance("clear_aperture"))
+    except ValueProblem:
+        return beam
+    d = g.entrance_diameter
+    if not (s.typical and s.low > 0 and d[0] > 0 and math.isfinite(s.high)):
+        return beam
+    t = (passed(s.low, d[2]) if math.isfinite(d[2]) else 0.0, passed(s.typical, d[1]), passed(s.high, d[0]))
+    return transmit(beam, t) if t[1] < 1.0 else beam
 
 
 def clear_aperture(walk, v) -> None:
@@ -44,16 +71,17 @@ def clear_aperture(walk, v) -> None:
                         "aperture cannot be checked", where, key=True)
         return
     d = g.entrance_diameter
-    clipped = math.exp(-2.0 * (s.typical / d[1]) ** 2)
+    clipped = 1.0 - passed(s.typical, d[1])
     if clipped > CLIPPING_WARN:
-        worst = math.exp(-2.0 * (s.typical / d[2]) ** 2) if math.isfinite(d[2]) else 1.0
+        worst = 1.0 - passed(s.typical, d[2]) if math.isfinite(d[2]) else 1.0
         walk.report.add("aperture-clipping",
                         f"{v.name}: a clear aperture of {s.text} clips {100 * clipped:.3g}% of the power of the "
                         f"{walk.show('beam_diameter', d[1], 'mm')} beam (1/e² diameter) on it"
                         + (f" (up to {100 * worst:.3g}% within the tolerances)" if worst > clipped * 1.01 else "")
-                        + "; the transmission after it is lower and the beam's edge diffracts (a Gaussian through "
-                        "a circular aperture loses exp(−2a²/w²); keep the aperture above about 1.5× the beam's "
-                        "1/e² diameter)", where, quantities=(f"{v.name}.beam_diameter",))
+                        + "; the numbers after it count that loss, but not the diffraction of the clipped edge, "
+                        "which they take as the same Gaussian beam (a Gaussian through a circular aperture loses "
+                        "exp(−2a²/w²); keep the aperture above about 1.5× the beam's 1/e² diameter)", where,
+                        quantities=(f"{v.name}.beam_diameter",))
 
 
 def focus_spot(walk, v) -> None:

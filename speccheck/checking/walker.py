@@ -16,7 +16,7 @@ from __future__ import annotations
 import math
 from dataclasses import replace
 
-from speccheck.checking import beam_space, targets, wording
+from speccheck.checking import beam_checks, beam_space, targets, wording
 from speccheck.checking.column import BlockCheck
 from speccheck.checking.failures import NUMERIC_FAILURES, failure as _failure, in_range as _in_range
 from speccheck.checking.laser_pulse import beam_from, chirp_duration, laser_chirp, measured_spectrum
@@ -270,7 +270,7 @@ class PathWalk:
             ctx = self.stage_context(notes)
             incident = self.sheet.get(columns[-1], {})
             try:
-                out = kind.apply(beam, params, ctx)
+                out = beam_checks.through_aperture(self, stage, kind.apply(beam, params, ctx))
                 _in_range(out)
             except StageProblem as exc:
                 self.report.add("stage-parameter", f"{name}: {exc}", here, key=True)

@@ -447,6 +447,11 @@ def test_a_laser_gdd_without_a_duration_says_the_duration_it_gives(check):
     tl = 0.4413 / (299792458 * 30e-9 / 800e-9**2)
     expected = tl * math.sqrt(1 + (4 * math.log(2) * 5000e-30 / tl**2) ** 2)
     assert cell(r, "pulse_duration", "m").value == pytest.approx(expected, rel=2e-3)
+    # the laser column shows it too (from its field, by FFT), and what follows from it
+    laser = cell(r, "pulse_duration", "laser")
+    assert laser.status == "derived" and laser.value == pytest.approx(expected, rel=2e-3)
+    energy = cell(r, "pulse_energy", "laser").value
+    assert cell(r, "peak_power", "laser").value == pytest.approx(0.9394 * energy / laser.value, rel=1e-3)
 
 
 def test_a_duration_at_its_transform_limit_keeps_the_chirp_its_tolerance_allows(check):

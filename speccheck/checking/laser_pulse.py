@@ -8,11 +8,12 @@ from __future__ import annotations
 import math
 from dataclasses import replace
 
+from speccheck.checking.column import BlockCheck
 from speccheck.checking.stage_checks import interval
 from speccheck.physics.shapes import DEFAULT_SHAPE
 from speccheck.physics.beam import CARRIED, Beam, LaserPulse, typical
 from speccheck.reading.units import UnitError
-from speccheck.reading.values import ValueProblem
+from speccheck.reading.values import Stated, ValueProblem
 
 
 def beam_from(cells: dict, old: Beam | None, shape_limit: float | None = None, shape: str = DEFAULT_SHAPE,
@@ -110,7 +111,8 @@ def chirp_duration(walk, beam: Beam, ctx) -> Beam:
     key = "gdd" if isinstance(walk.data.get("laser"), dict) and "gdd" in walk.data["laser"] else "tod"
     if stated is None:
         walk.report.add("stage-model", f"laser.{key}: the pulse it carries lasts {shown} (its field by FFT); "
-                        "the laser column states no pulse_duration", ("laser", key), key=True)
+                        "the laser column states no pulse_duration, and shows this one", ("laser", key), key=True)
+        return _with_duration(walk, beam, got, shown)
     elif got[0] > stated[2] * 1.001 or got[2] < stated[0] * 0.999:
         tl = walk.show("pulse_duration", made.tl[1], "fs")
         walk.report.add("laser-chirp-mismatch", f"laser.{key}: with the chirp the laser's pulse carries, a "
@@ -118,3 +120,17 @@ def chirp_duration(walk, beam: Beam, ctx) -> Beam:
                         f"{walk.show('pulse_duration', stated[1] or stated[0], 'fs')}; one of them is wrong",
                         ("laser", key), quantities=(f"laser.{key}", "laser.pulse_duration"))
     return beam
+
+
+def _with_duration(walk, beam: Beam, got: tuple, shown: str) -> Beam:
+    """The laser column again, with the duration of its chirped field carried into it (as a stage's
+    column takes what the path carries), so that its peak power and what follows are shown; the
+    beam carries the new column's values and keeps its field."""
+    block = walk.data.get("laser")
+    if not isinstance(block, dict) or "laser" not in walk.sheet:
+        return beam
+    inherited = {"pulse_duration": Stated("pulse_duration", got[0], got[2], got[1], "fs",
+                                          f"{shown} (from the laser's chirp)")}
+    cells = BlockCheck(walk.c, "laser", block, walk.tolerance, walk.report, None, inherited, notes=False).run()
+    walk.sheet["laser"] = cells
+    return replace(beam, values={q: interval(cells[q]) for q in CARRIED if q in cells})

@@ -113,3 +113,32 @@ def test_a_remedy_beyond_the_sheets_own_limit_is_not_offered(check):
     remedies = {r.input: r for r in miss.remedies}
     assert not remedies["1 MHz.pulse_energy"].reachable
     assert remedies["laser.pulse_duration"].high == pytest.approx(SECH2 * 20e-6 / 100e6, rel=2e-3)
+
+
+def test_a_target_met_exactly_is_met(check):
+    # 100 µJ × 100 kHz = 10 W exactly (by hand); the derived value may differ in its last digits
+    r = check("""
+        defaults: {tolerance: 0%}
+        laser: {wavelength: 1030 nm, pulse_duration: 300 fs, average_power: "<= 20 W"}
+        operating_points:
+          - {name: 100 kHz, repetition_rate: 100 kHz, pulse_energy: 100 µJ}
+        target:
+          average_power: ">= 10 W"
+        """.replace("        ", ""))
+    [f] = [f for f in r.findings if f.rule.startswith("target-")]
+    assert f.rule == "target-met"
+
+
+def test_a_point_under_the_sheets_bound_shows_what_its_own_values_give(check):
+    # the sheet's "<= 20 W" narrowed by 100 µJ × 100 kHz (± tolerances) shows 10 W, not the middle of
+    # 9.5 … 10.5 W; a bound-only energy (>= 380 µJ, at most 400 µJ by 20 W at 50 kHz) shows the middle of
+    # its range, and the peak power beside it is 0.8814 E/τ of that energy (by hand), not its own middle
+    r = check(SHEET.replace('">= 150 µJ"', "100 µJ") + """
+  - name: 50 kHz
+    repetition_rate: 50 kHz
+    pulse_energy: ">= 380 µJ"
+""")
+    assert cell(r, "average_power", "100 kHz").value == pytest.approx(10.0, rel=1e-9)
+    energy = cell(r, "pulse_energy", "50 kHz").value
+    assert 380e-6 < energy < 400e-6
+    assert cell(r, "peak_power", "50 kHz").value == pytest.approx(0.8814 * energy / 300e-15, rel=1e-3)

@@ -154,3 +154,32 @@ def test_operating_point_quantities_are_inputs(units):
     assert cell.implied_high == pytest.approx(20 / 50e3, rel=1e-3)
     [f] = [f for f in result.findings if f.rule == "relation-conflict"]
     assert f.origin == "--set slow.pulse_energy=500 µJ" and f.line is None
+
+
+def test_a_bound_is_read_as_on_the_command_line(spec):
+    code, doc = as_json("--set", "laser.average_power=>= 1 W", str(spec))
+    assert doc["files"][0]["sheet"]["laser"]["average_power"]["stated"] == ">= 1 W"
+
+
+def test_a_setting_takes_the_signs_its_parameter_allows(tmp_path):
+    path = tmp_path / "neg.yaml"
+    path.write_text(textwrap.dedent("""\
+        spec_version: 1
+        laser: {wavelength: 1030 nm, repetition_rate: 10 kHz, pulse_energy: 100 µJ, pulse_duration: 300 fs,
+                beam_diameter: 5 mm, m2: 1}
+        path:
+          - {name: L1, kind: lens, focal_length: -100 mm}
+          - {name: far, kind: sample, distance: 1 m}
+        target:
+          beam_diameter: "<= 40 mm"
+        """), encoding="utf-8")
+    # a diverging lens may be set to another negative focal length, a distance to 0 but not below
+    assert as_json("--set", "L1.focal_length=-200 mm", str(path))[0] == 0
+    assert as_json("--set", "far.distance=0 mm", str(path))[0] == 0
+    code, out, err = cli("--set", "far.distance=-1 mm", str(path))
+    assert code == 2 and "never negative" in err
+    # geometric optics, by hand: D(L) = D0 (1 + L/|f|) ≤ 40 mm needs |f| ≥ 1 m / 7 (diffraction adds 1e-4 here)
+    code, doc = as_json(str(path))
+    [miss] = [f for f in doc["files"][0]["findings"] if f["rule"] == "target-not-met"]
+    lens = next(r for r in miss["remedies"] if r["input"] == "L1.focal_length")
+    assert lens["low"] is None and lens["high"] == pytest.approx(-1 / 7, rel=1e-3)

@@ -16,6 +16,17 @@ def build(col) -> dict[str, Cell]:
     names = col.net.names
     removed = set(d.removed)
     nominal = col.nominal(removed)
+    # a value stated only by its bounds shows what the typical values give it, else the centre of its
+    # narrowed interval, and the values derived from it follow from that one (so that one column
+    # agrees with itself: a peak power is its energy over its duration)
+    centres = {}
+    for q, s in col.stated.items():
+        i = col.net.index[q]
+        if s.typical is None and i not in removed and q not in col.carried:
+            value = _typical_of(nominal.get(i), *_narrowed(s, d.state, i))
+            if value and i not in nominal:
+                centres[i] = math.log(value)
+    typical = col.nominal_with(removed, centres) if centres else nominal
     out: dict[str, Cell] = {}
     for i, q in enumerate(names):
         quantity = BY_NAME[q]
@@ -35,20 +46,16 @@ def build(col) -> dict[str, Cell]:
             else:
                 # what the rest of the spec implies narrows the stated interval ("<= 80 µJ" with
                 # ">= 30 W" at 600 kHz is 50 … 80 µJ); the text as written stays in the cell
-                n_low, n_high = exp(d.state.lo[i]), exp(d.state.hi[i])
-                if n_low is not None and (low is None or n_low > low):
-                    low = n_low
-                if n_high is not None and (high is None or n_high < high):
-                    high = n_high
+                low, high = _narrowed(s, d.state, i)
                 if s.typical is None:
-                    value = centre(low, high)
+                    value = _typical_of(nominal.get(i), low, high)
                 out[q] = Cell("stated", low, high, value, quantity.si_unit, s.unit, text=s.text,
                               overridden=col.overridden(q))
         elif d.state.known(i) and i not in col.fixed:
             low, high = exp(d.state.lo[i]), exp(d.state.hi[i])
             value = centre(low, high)
-            if i in nominal:
-                value = min(max(exp(nominal[i]) or math.inf, low or 0.0), high or math.inf)
+            if i in typical:
+                value = min(max(exp(typical[i]) or math.inf, low or 0.0), high or math.inf)
                 value = value if math.isfinite(value) else None
             if value is None and low is None and high is None:
                 continue  # beyond what a float holds: nothing to show
@@ -60,3 +67,23 @@ def build(col) -> dict[str, Cell]:
         if q not in out and d.state.uses_quantity(derived_from, col.net.index[q]):
             out[q] = Cell("derived", value, value, value, BY_NAME[q].si_unit, "1", assumed=True)
     return {q: out[q] for q in names if q in out}
+
+
+def _narrowed(s, state, i: int) -> tuple:
+    """A stated interval narrowed by what the rest of the column implies (None: open)."""
+    low = s.low if s.low > 0.0 else None
+    high = s.high if math.isfinite(s.high) else None
+    n_low, n_high = exp(state.lo[i]), exp(state.hi[i])
+    if n_low is not None and (low is None or n_low > low):
+        low = n_low
+    if n_high is not None and (high is None or n_high < high):
+        high = n_high
+    return low, high
+
+
+def _typical_of(log_value, low, high):
+    """The value the typical values give (ln), kept inside [low, high]; else the interval's centre."""
+    if log_value is None:
+        return centre(low, high)
+    value = min(max(exp(log_value) or math.inf, low or 0.0), high or math.inf)
+    return value if math.isfinite(value) else centre(low, high)

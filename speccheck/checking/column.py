@@ -212,12 +212,16 @@ class BlockCheck:
             cached = self._nominal[key] = self._evaluate_nominal(key)
         return cached
 
-    def _evaluate_nominal(self, exclude: frozenset) -> dict:
+    def _evaluate_nominal(self, exclude: frozenset, extra: dict | None = None) -> dict:
         idx = self.net.index
         known = {idx[q]: math.log(s.typical) for q, s in self.stated.items()
                  if s.typical is not None and s.typical > 0.0 and idx[q] not in exclude}
         known |= {idx[q]: math.log(v) for q, v in self.defaults.items()}
-        return evaluate(self.net, known)
+        return evaluate(self.net, known | (extra or {}))
+
+    def nominal_with(self, exclude, extra: dict) -> dict:
+        """As ``nominal``, with values stated only by bounds taken at ``extra`` (index → ln value)."""
+        return self._evaluate_nominal(frozenset(exclude), extra)
 
     # ---------------------------------------------------------------- sheet
     # --------------------------------------------------------------- limits

@@ -18,6 +18,7 @@ therefore moves the average power.  Bounds (``<= 20 W``) are limits, never dropp
 from __future__ import annotations
 
 import difflib
+import json
 import math
 from dataclasses import dataclass
 
@@ -51,6 +52,7 @@ class Input:
     signed: bool = False  # may be negative (a GDD)
     highest: float = math.inf  # a share of the beam: at most 1
     lowest: float = 0.0  # what a quantity's own limit allows (M² ≥ 1), where the same for every shape
+    accepts: str = "positive"  # the values its declaration allows: "positive", "zero" (≥ 0) or "any" sign
     exact: bool = False  # a whole number by its nature (a pulse picker's divide_by, a harmonic order)
 
 
@@ -119,12 +121,13 @@ def _stages(checker, stages, at: tuple, out: dict) -> None:
                                    exact=bool(p.choices))
                 continue
             signed = p.dimension in SIGNED
+            accepts = "any" if signed or p.signed else "zero" if p.zero else "positive"
             raw = stage.get(p.name)
             value, unit = (p.default, p.dimension) if raw is None else (None, p.dimension)
             if raw is not None:
                 try:
                     s = parse_angle(label, raw, 0.0) if p.dimension == "angle" else \
-                        checker.values.parse_as(label, raw, p.dimension, 0.0, signed=signed)
+                        checker.values.parse_as(label, raw, p.dimension, 0.0, signed=accepts != "positive")
                     value, unit = s.typical, s.unit
                 except ValueProblem:
                     pass
@@ -132,7 +135,8 @@ def _stages(checker, stages, at: tuple, out: dict) -> None:
             exact = PARAM_TOLERANCES.get(p.name, (0.05,))[0] == 0.0  # exact by its nature: a whole number
             out[label] = Input(label, name, p.name, where, "angle" if p.dimension == "angle" else "number",
                                _UNITS.get(p.dimension, p.dimension), raw is not None, value, shown,
-                               signed or p.dimension == "angle", 1.0 if p.fraction else math.inf, exact)
+                               signed or p.dimension == "angle", 1.0 if p.fraction else math.inf, exact,
+                               accepts=accepts)
         branches = stage.get("branches")
         if isinstance(branches, dict):
             for branch, spec in branches.items():
@@ -156,7 +160,9 @@ def find(table: dict[str, Input], name: str) -> Input:
 def read_value(checker, inp: Input, text: str):
     """The value ``text`` (in the spec's grammar: '3 mJ', '>= 20 W', '{min: 1 mJ, max: 2 mJ}') as
     the document would hold it, after checking that the value grammar reads it."""
-    doc = load(text, Limits(max_bytes=1000, max_nodes=10, max_depth=2))
+    # a bound written as on the command line ('>= 20 W') is a string: YAML would read '>' as a folded block
+    doc = load(json.dumps(text) if text.lstrip()[:1] in (">", "|") else text, Limits(max_bytes=1000, max_nodes=10,
+                                                                               max_depth=2))
     raw = doc.data
     if doc.problems or raw is None or isinstance(raw, (list, bool)) or (isinstance(raw, dict) and inp.kind == "text"):
         raise SettingProblem(f"cannot read the value {text!r}")
@@ -166,7 +172,9 @@ def read_value(checker, inp: Input, text: str):
         elif inp.kind == "angle":
             parse_angle(inp.name, raw, 0.0)
         elif inp.kind == "number":
-            checker.values.parse_as(inp.name, raw, inp.dimension, 0.0, signed=inp.signed)
+            got = checker.values.parse_as(inp.name, raw, inp.dimension, 0.0, signed=inp.accepts != "positive")
+            if inp.accepts == "zero" and got.low < 0.0:
+                raise SettingProblem(f"{inp.name} is never negative, got {text!r}")
         elif not isinstance(raw, str):
             raise SettingProblem(f"{inp.name}: expected a name, got {text!r}")
     except ValueProblem as e:

@@ -17,6 +17,7 @@ from dataclasses import replace
 from speccheck.checking.column import BlockCheck
 from speccheck.checking.overrides import merged
 from speccheck.checking.report import Report
+from speccheck.records.rules import rule
 
 
 def places(data: dict, index: int) -> dict:
@@ -48,22 +49,31 @@ def walk_points(checker, data: dict, tolerance, report: Report, points: dict, ou
         check_path(checker, {**data, "laser": merged(data, index)}, tolerance, sub, sheet, found, lean=True)
         # a point whose own values contradict each other (said at the point) determines no target
         clash = next((f for f in sub.findings if f.rule == "relation-conflict"), None)
+        targets = {o.finding: o for o in found if o.finding is not None}
         kept = {}
         for k, f in enumerate(sub.findings):
             if f.rule.startswith("target-") or f.severity in ("error", "warning") and (f.rule, f.line,
                                                                                          f.column) not in said:
                 message = f.message
-                if f.rule == "target-unknown" and clash is not None:
-                    message = (f"{message.split(': the path does not determine')[0]} is not judged: the "
-                               f"point's own values contradict each other (line {clash.line})")
+                if k in targets and clash is not None:
+                    where = f"line {clash.line}" if clash.line else "a value set on the command line"
+                    f = replace(f, rule="target-unknown", severity=rule("target-unknown").severity)
+                    message = (f"target {_key(targets[k])} {targets[k].need.text} is not judged: the point's own "
+                               f"values contradict each other ({where})")
                 kept[k] = len(report.findings)
                 message = message.replace("at 'laser'", "at this point")  # a path without stages ends at the laser
                 report.findings.append(replace(f, message=f"at operating point {name!r}: {message}"))
-        outcomes.extend(replace(o, finding=kept.get(o.finding), point=(index, name)) for o in found)
+        outcomes.extend(replace(o, finding=kept.get(o.finding), point=(index, name),
+                                verdict="unknown" if clash is not None else o.verdict) for o in found)
+
+
+def _key(outcome) -> str:
+    return outcome.at[-1] if outcome.at and isinstance(outcome.at[-1], str) else outcome.need.quantity
 
 
 def unjudged(outcomes: list) -> set:
     """The findings of the laser block's own targets that it does not determine where every
     operating point was walked: each point speaks for itself (the laser block of such a sheet is
     what the points share, often without a rate or an energy of its own)."""
-    return {o.finding for o in outcomes if o.point is None and o.verdict == "unknown" and o.finding is not None}
+    return {o.finding for o in outcomes if o.point is None and o.finding is not None
+            and (o.verdict == "unknown" or not o.nominal)}

@@ -36,7 +36,10 @@ from speccheck.reading.units import format_number
 from speccheck.records.findings import Remedy
 
 SPAN = math.log(30.0)  # positive inputs: searched from 1/30 to 30 times their value
-SIGNED_SPAN = 4.0  # signed inputs: ± this many times their size
+SIGNED_SPAN = 4.0  # signed inputs: ± this many times their size…
+# …and at least this size, so that a value at or near zero is searched over a useful range (common
+# practice: the GDD, TOD and FOD of ultrafast optics and compressors, and a tilt of a tenth of a radian)
+SIGNED_FLOOR = {"s^2": 1000e-30, "s^3": 1e4 * 1e-45, "s^4": 1e5 * 1e-60, "rad": 0.1}
 BUDGET = 160  # re-checks per target, at most, shared out evenly over the inputs it depends on
 PER_INPUT = 32  # …and at most this many per input
 DOCUMENT_BUDGET = 160  # …and per document over its targets not met; a review adds this per met target…
@@ -105,22 +108,27 @@ def candidates(table: dict, columns: tuple, point: tuple | None = None, own: tup
         if inp.kind not in ("quantity", "number", "angle") or inp.value is None:
             continue
         of_point = point is not None and inp.column == point[1] and inp.at[:2] == ("operating_points", point[0])
+        searchable = inp.value > 0 or inp.signed or inp.value < 0 and inp.accepts == "any"
         if (inp.column == "laser" and inp.parameter not in own or of_point) and inp.stated \
-                and inp.parameter not in CARRIER and (inp.value > 0 or inp.signed):
+                and inp.parameter not in CARRIER and searchable:
             out.append(inp)
-        elif inp.column in columns and inp.column != "laser" and (inp.value > 0 or inp.signed):
+        elif inp.column in columns and inp.column != "laser" and searchable:
             out.append(inp)
     return out
 
 
 def domain(inp: overrides.Input):
     """(t0, lowest t, highest t, first step, t -> x) of the coordinate searched: ln x for a
-    positive input, x in units of its own size for a signed one."""
+    positive input, ln |x| for a negative one that keeps its sign (a diverging lens: the search does
+    not pass through infinity), x in units of its own size for a signed one."""
     x0 = inp.value
     if inp.signed:
-        size = abs(x0) or 1.0
+        size = max(abs(x0), SIGNED_FLOOR.get(inp.dimension, 0.0)) or 1.0
         t0 = x0 / size
         return t0, t0 - SIGNED_SPAN, t0 + SIGNED_SPAN, 0.1, lambda t: t * size
+    if x0 < 0:
+        t0 = math.log(-x0)
+        return t0, t0 - SPAN, t0 + SPAN, 0.1, lambda t: -math.exp(t)
     t0 = math.log(x0)
     lo, hi = t0 - SPAN, t0 + SPAN
     if math.isfinite(inp.highest):
@@ -156,6 +164,8 @@ def remedy_for(rechecks: Rechecks, inp: overrides.Input, at: tuple, need, value:
     low = None if found.low is None or not found.reachable else to_x(found.low)
     high = None if found.high is None or not found.reachable else to_x(found.high)
     binding = (low is not None and not found.domain[0], high is not None and not found.domain[1])
+    if inp.value < 0 and not inp.signed:  # ln |x| grows as x falls: the ends change places
+        low, high, binding = high, low, binding[::-1]
     reachable = found.reachable
     if found.reachable and math.isfinite(inp.highest) and found.high is None:
         high = inp.highest  # a share of the beam is met up to all of it

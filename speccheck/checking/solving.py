@@ -45,8 +45,9 @@ def solve(checker, doc, name: str, result) -> Solution:
             raise overrides.SettingProblem(f"{name} has no value in this spec to start from; state it, or set "
                                            "one with --set")
         inp = replace(inp, value=cell.value, display_unit=cell.display_unit)
-    if not inp.signed and inp.value <= 0:
-        raise overrides.SettingProblem(f"{name} is {inp.value:g}: solve needs a positive value to start from")
+    if not inp.signed and (inp.value == 0 or inp.value < 0 and inp.accepts != "any"):
+        raise overrides.SettingProblem(f"{name} is {inp.value:g} {inp.dimension}: solve needs a value other than "
+                                       "zero to start from; set one with --set")
     t0, lo, hi, step, to_x = domain(inp)
     targets = {}
     for point in [None] + points:
@@ -69,6 +70,8 @@ def solve(checker, doc, name: str, result) -> Solution:
         return Solution(name, None, None, inp.dimension, inp.value, inp.display_unit, False, why)
     low = to_x(found.low) if found.low is not None else (1.0 if inp.exact else None)
     high = to_x(found.high) if found.high is not None else (inp.highest if math.isfinite(inp.highest) else None)
+    if inp.value < 0 and not inp.signed:  # searched in ln |x|: the ends change places
+        low, high = high, low
     if inp.exact:
         low = float(math.ceil(low - 1e-9)) if low is not None else None
         high = float(math.floor(high + 1e-9)) if high is not None else None

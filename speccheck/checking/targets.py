@@ -14,6 +14,9 @@ from speccheck.reading.values import Stated, ValueProblem
 from speccheck.records.findings import Cell
 
 
+ROUNDING = 1e-9  # relative: a value this close to a target's bound meets it
+
+
 @dataclass(frozen=True)
 class Outcome:
     """One target's verdict, for what comes after the walk (``remedies``): where it is written, the
@@ -28,11 +31,12 @@ class Outcome:
     verdict: str  # "met" | "not-met" | "uncertain" | "unknown"
     finding: int | None = None
     point: tuple | None = None  # (index, column name) of the operating point walked; None: the laser block
+    nominal: bool = True  # False: the column has no typical value, only bounds (the value is an end of them)
 
 
-def _record(walk, where, last, columns, need, value, verdict, before: int) -> None:
+def _record(walk, where, last, columns, need, value, verdict, before: int, nominal: bool = True) -> None:
     found = len(walk.report.findings) - 1 if len(walk.report.findings) > before else None
-    walk.outcomes.append(Outcome(where, last, tuple(columns), need, value, verdict, found))
+    walk.outcomes.append(Outcome(where, last, tuple(columns), need, value, verdict, found, nominal=nominal))
 
 
 def finish(walk, columns: list, beam: Beam, target, target_at: tuple, end_at: tuple = ()) -> None:
@@ -72,29 +76,35 @@ def judge(walk, columns: list, target, target_at: tuple) -> None:
                             f"{need.quantity} at {last!r}; {determining(walk, last, need.quantity)}", where)
             _record(walk, where, last, columns, need, None, "unknown", before)
             continue
+        # a value with both ends known has a nominal value; an open one (a bound) shows only an end
+        nominal = cell.value is not None and cell.low is not None and cell.high is not None
         low = cell.low if cell.low is not None else 0.0
         high = cell.high if cell.high is not None else math.inf
         value = cell.value if cell.value is not None else (low if low > 0 else high)
         shown = walk.show(need.quantity, value, need.unit)
-        if low >= need.low and high <= need.high:
+        # a value equal to its bound meets it: the arithmetic that derived it may leave the last digits
+        need_low, need_high = need.low * (1 - ROUNDING), need.high * (1 + ROUNDING)
+        if low >= need_low and high <= need_high:
             margin = _margin(value, need)
             walk.report.add("target-met", f"target {key} {need.text} is met at {last!r}: {shown}{margin}.",
                             where, quantities=(f"{last}.{need.quantity}",))
-            _record(walk, where, last, columns, need, value, "met", before)
-        elif high < need.low or low > need.high:
+            _record(walk, where, last, columns, need, value, "met", before, nominal)
+        elif high < need_low or low > need_high:
             cost = costliest(walk, columns, need)
             walk.report.add("target-not-met",
                             f"target {key} {need.text} is not met at {last!r}: the path gives {shown}"
                             f"{_margin(value, need)}.{cost}", where,
                             quantities=(f"{last}.{need.quantity}",))
-            _record(walk, where, last, columns, need, value, "not-met", before)
+            _record(walk, where, last, columns, need, value, "not-met", before, nominal)
         else:
+            span = f"({walk.show(need.quantity, low, need.unit)} … {walk.show(need.quantity, high, need.unit)})"
+            said = ("it is known only by its bounds" if not nominal else
+                    f"its nominal value does{'' if need_low <= value <= need_high else ' not'} meet it")
             walk.report.add("target-uncertain",
-                            f"target {key} {need.text} may not be met at {last!r}: the path gives {shown} "
-                            f"({walk.show(need.quantity, low, need.unit)} … "
-                            f"{walk.show(need.quantity, high, need.unit)}), within the tolerances", where,
+                            f"target {key} {need.text} may not be met at {last!r}: the path gives {shown} {span}; "
+                            f"{said}, and within the tolerances it may go either way.", where,
                             quantities=(f"{last}.{need.quantity}",))
-            _record(walk, where, last, columns, need, value, "uncertain", before)
+            _record(walk, where, last, columns, need, value, "uncertain", before, nominal)
 
 
 def _margin(value: float, need: Stated) -> str:

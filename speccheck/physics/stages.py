@@ -176,7 +176,7 @@ PARAM_TOLERANCES: dict[str, tuple[float, str]] = {
 
 _TELESCOPE = (Param("magnification", "1", required=True), Param("focal_length", "m", signed=True))
 # every stage sits a distance after the plane of the column before (free space, n = 1)
-_DISTANCE = Param("distance", "m", default=0.0)
+_DISTANCE = Param("distance", "m", default=0.0, zero=True)  # 0: this stage sits on the plane before
 
 
 def _placed(kind: StageKind) -> StageKind:

@@ -135,3 +135,17 @@ def test_solve_meets_the_target_at_every_operating_point(tmp_path):
     # the 1 MHz point decides: P = 0.8814 E/τ ≥ 100 MW needs τ ≤ 0.8814 × 20 µJ / 100 MW (sech², by hand);
     # the 100 kHz point alone would allow 1.32 ps
     assert code == 0 and json.loads(out)["high"] == pytest.approx(0.8814 * 20e-6 / 100e6, rel=2e-3)
+
+
+def test_solve_on_a_target_the_numbers_do_not_determine_says_what_would(tmp_path):
+    path = tmp_path / "undetermined.yaml"
+    path.write_text(textwrap.dedent("""\
+        spec_version: 1
+        laser: {wavelength: 1030 nm, repetition_rate: 10 kHz, pulse_energy: 100 µJ, pulse_duration: 300 fs}
+        path:
+          - {name: obj, kind: focus, focal_length: 200 mm}
+        target:
+          peak_intensity: ">= 1e13 W/cm^2"
+        """), encoding="utf-8")
+    code, out, _ = solve(str(path), "--for", "obj.focal_length")
+    assert code == 1 and "stating laser.beam_diameter would determine it" in out

@@ -41,7 +41,8 @@ SIGNED_SPAN = 4.0  # signed inputs: ± this many times their size…
 # practice: the GDD, TOD and FOD of ultrafast optics and compressors, and a tilt of a tenth of a radian)
 SIGNED_FLOOR = {"s^2": 1000e-30, "s^3": 1e4 * 1e-45, "s^4": 1e5 * 1e-60, "rad": 0.1}
 BUDGET = 160  # re-checks per target, at most, shared out evenly over the inputs it depends on
-PER_INPUT = 32  # …and at most this many per input
+PER_INPUT = 32  # …and at most this many per input…
+FIRST = 12  # …of which this many in a first pass over every input
 DOCUMENT_BUDGET = 160  # …and per document over its targets not met; a review adds this per met target…
 REVIEW_BUDGET = 480  # …up to this many
 SHOWN = 3  # remedies said in words (the smallest changes)
@@ -60,10 +61,16 @@ class Rechecks:
     def base(self, at: tuple, point: int | None = None) -> float | None:
         """The target's value in a re-check of the document as it is (the reference of a search:
         a nominal re-check may differ from the check's own value in the last digits)."""
-        if ("base", point) not in self.moves:
-            _, outcomes, _ = self.c.rerun(self.doc, self.data, self.nominal, point)
-            self.moves["base", point] = {o.at: o.value for o in outcomes}
+        self._base(point)
         return self.moves["base", point].get(at)
+
+    def _base(self, point: int | None) -> set:
+        """The errors of the document as it is (rule, line, column), re-checked as the searches are."""
+        if ("base", point) not in self.moves:
+            _, outcomes, findings = self.c.rerun(self.doc, self.data, self.nominal, point)
+            self.moves["base", point] = {o.at: o.value for o in outcomes}
+            self.moves["errors", point] = {(f.rule, f.line, f.column) for f in findings if f.severity == "error"}
+        return self.moves["errors", point]
 
     def with_value(self, inp: overrides.Input, x: float) -> dict:
         unit = "" if inp.dimension == "1" else " " + inp.dimension
@@ -89,10 +96,17 @@ class Rechecks:
                     sheet, outcomes, findings = self.c.rerun(self.doc, self.with_value(inp, x), self.nominal,
                                                              point)
                 places = {self.doc.where(inp.at), self.doc.where(inp.at, key=True)}
-                errors = [f for f in findings if f.severity == "error"]
-                # (exact values conflict where they agree only within tolerances: not a domain's end)
-                outside = any((f.line, f.column) in places for f in errors
-                              if not f.rule.startswith("target-") and not (self.nominal and f.rule == "relation-conflict"))
+                errors = [f for f in findings if f.severity == "error" and not f.rule.startswith("target-")]
+                before = self._base(point)
+                # outside the input's domain: an error at the input itself, or one the document as it is
+                # does not have that names the input's quantity (a rate whose power passes the sheet's
+                # maximum, a bandwidth below the duration's transform limit); exact values that agree
+                # only within tolerances conflict in both, so such a conflict is not a domain's end
+                mine = f".{inp.parameter}"
+                outside = any(((f.line, f.column) in places and not (self.nominal and f.rule == "relation-conflict"))
+                              or ((f.rule, f.line, f.column) not in before and any(q.endswith(mine) for q in
+                                                                                   f.quantities))
+                              for f in errors)
                 self.done[key] = ({} if outside else {o.at: o.value for o in outcomes}, bool(errors))
             except (ArithmeticError, ValueError):
                 self.done[key] = ({}, True)
@@ -191,7 +205,7 @@ def depends(rechecks: Rechecks, inp: overrides.Input, at: tuple, value: float, p
     return False
 
 
-def remedies_for(rechecks: Rechecks, outcome) -> tuple[tuple[Remedy, ...], list[str]]:
+def remedies_for(rechecks: Rechecks, outcome, budget: int = BUDGET) -> tuple[tuple[Remedy, ...], list[str]]:
     """The remedy of each input the target depends on, the budget of re-checks shared out evenly;
     and the inputs it depends on whose search the budget cut short."""
     start = len(rechecks.done)
@@ -202,19 +216,24 @@ def remedies_for(rechecks: Rechecks, outcome) -> tuple[tuple[Remedy, ...], list[
     own = tuple(k for k in rechecks.data["operating_points"][index] if k != "name") if outcome.point else ()
     try:
         chosen = [inp for inp in candidates(rechecks.table, outcome.columns, outcome.point, own)
-                  if len(rechecks.done) - start < BUDGET and depends(rechecks, inp, outcome.at, value, index)]
+                  if len(rechecks.done) - start < budget and depends(rechecks, inp, outcome.at, value, index)]
     except seek.Budget:
         return (), ["every input"]
-    out, cut = [], []
-    for k, inp in enumerate(chosen):
-        left = BUDGET - (len(rechecks.done) - start)
-        remedy, _ = remedy_for(rechecks, inp, outcome.at, outcome.need, value,
-                               max(left // (len(chosen) - k), 4), index)
-        if remedy == UNSETTLED:
-            cut.append(inp.name)
-        elif remedy is not None:
-            out.append(remedy)
-    return tuple(out), cut
+    # first a short search of every input (a straight line settles in a few re-checks), then what is
+    # left of the budget shared between the ones still open; a search run again replays its first
+    # re-checks from the cache, so only the new ones cost
+    found: dict = {}
+    first = min(FIRST, max(6, budget // max(len(chosen), 1)))
+    for pass_budget in (first, None):
+        open_ = [inp for inp in chosen if found.get(inp.name, UNSETTLED) == UNSETTLED]
+        for k, inp in enumerate(open_):
+            left = budget - (len(rechecks.done) - start)
+            if pass_budget is None and left <= 0:
+                break
+            share = pass_budget or min(PER_INPUT, first + max(left // (len(open_) - k), 0))
+            found[inp.name], _ = remedy_for(rechecks, inp, outcome.at, outcome.need, value, share, index)
+    out = tuple(r for inp in chosen if (r := found.get(inp.name)) not in (None, UNSETTLED))
+    return out, [inp.name for inp in chosen if found.get(inp.name, UNSETTLED) == UNSETTLED]
 
 
 def attach(checker, doc, outcomes: list, findings: list, every: bool) -> list:
@@ -223,11 +242,14 @@ def attach(checker, doc, outcomes: list, findings: list, every: bool) -> list:
     met = sum(1 for o in outcomes if every and o.verdict != "not-met")
     rechecks = Rechecks(checker, doc, budget=min(DOCUMENT_BUDGET * (1 + met), REVIEW_BUDGET))
     findings = list(findings)
-    # the targets not met first: the re-checks a document allows go to them before the met ones
+    # the targets not met first, the re-checks a document allows shared out evenly between them,
+    # then (in a review) the met ones
+    unmet = sum(1 for o in outcomes if o.verdict == "not-met" and o.finding is not None)
+    share = min(BUDGET, max(PER_INPUT * 2, DOCUMENT_BUDGET // max(unmet, 1)))
     for o in sorted(outcomes, key=lambda o: o.verdict != "not-met"):
         if o.finding is None or o.verdict == "unknown" or not (every or o.verdict == "not-met"):
             continue
-        found, cut = remedies_for(rechecks, o)
+        found, cut = remedies_for(rechecks, o, share if o.verdict == "not-met" else BUDGET)
         f = findings[o.finding]
         findings[o.finding] = replace(f, remedies=found, message=f.message + words(checker.units, found, o, cut))
     return findings
@@ -270,10 +292,15 @@ def phrase(units, r: Remedy) -> str:
     name = r.parameter.replace("_", " ")
     where = "at the laser" if r.column == "laser" else f"at {r.column!r}"
 
-    def v(x):
-        return show(units, x, unit) if unit != "1" else format_number(x, 4)
-
     x = r.value
+    end = _end(r)
+    # an end within 0.1 % of the value now is shown with the digits that tell them apart
+    close = end is not None and x is not None and x != 0 and abs(end - x) < 1e-3 * abs(x)
+    digits = 7 if close else 4
+
+    def v(y):
+        return show(units, y, unit, digits) if unit != "1" else format_number(y, digits)
+
     if r.low is None and r.high is None:
         return f"any {name} {where}"
     if r.low is not None and r.high is not None and r.low != r.high and not (r.high == 1.0 and unit == "%"):
@@ -282,9 +309,9 @@ def phrase(units, r: Remedy) -> str:
         text = f"{name} ≥ {v(r.low)}" if r.low != r.high else f"{name} {v(r.low)}"
     else:
         text = f"{name} ≤ {v(r.high)}"
-    end = _end(r)
     signed = r.unit in overrides.SIGNED or r.unit == "rad"  # a factor says nothing of a signed number
-    factor = f" (×{format_number(end / x, 3)})" if end and x and x > 0 and end > 0 and not signed else f" (now {v(x)})"
+    factor = f" (×{format_number(end / x, 6 if close else 3)})" if end and x and x > 0 and end > 0 and not signed \
+        else f" (now {v(x)})"
     default = "" if r.stated else ", not stated"
     return f"{text} {where}{factor}{default}"
 

@@ -94,6 +94,13 @@ class Seeker:
             self.domain_ends.add(a)
         return a
 
+    def open_ahead(self, start: float, direction: int, slope: float) -> bool:
+        """On a straight line with no bound ahead (the band open on the side the line heads for), the
+        rest of the range meets it: confirmed at the range's end."""
+        bound = self.band[1] if slope * direction > 0 else self.band[0]
+        end = self.hi if direction > 0 else self.lo
+        return bound in (float("inf"), float("-inf")) and end != start and self.met(end)
+
     def outward(self, start: float, direction: int) -> float | None:
         """From a point that meets the band, the boundary in ``direction`` (None: none in range).
         Steps grow threefold, or jump to just past where the secant through the last two points
@@ -161,18 +168,23 @@ def _secant(s: Seeker, t0: float, g0: float, t1: float, g1: float) -> Found | No
     provided the way there was monotonic (None: let the scan decide)."""
     bound = s.band[0] if g0 < s.band[0] else s.band[1]
     ta, ga, tb, gb = t0, g0, t1, g1
-    for _ in range(12):
+    for step in range(12):
         if gb == ga:
             return None
-        t = min(max(tb + (bound - gb) * (tb - ta) / (gb - ga), s.lo), s.hi)
+        slope = (gb - ga) / (tb - ta)
+        t = min(max(tb + (bound - gb) / slope, s.lo), s.hi)
         if s.met(t):
             up = t > t0
+            # the first secant landing on the bound: three points on one straight line (the relation
+            # table's monomials), so the way there was monotonic and, with no bound ahead, so is the rest
+            line = step == 0 and abs(s.at(t) - bound) <= CLOSE
             # the near end: between t and the closest point seen on the way that misses the band
             before = [u for u in s.seen if (t0 <= u < t if up else t < u <= t0) and not s.met(u)]
             near = s.edge(t, max(before) if up else min(before))
-            if any(s.met(t0 + (near - t0) * k / 3.0) for k in (1, 2)):
+            if not line and any(s.met(t0 + (near - t0) * k / 3.0) for k in (1, 2)):
                 return None
-            far = s.outward(t, 1 if up else -1)
+            direction = 1 if up else -1
+            far = None if line and s.open_ahead(t, direction, slope) else s.outward(t, direction)
             return s.found(near, far) if up else s.found(far, near)
         gt = s.at(t)
         if gt is None or t in (s.lo, s.hi) and t == tb:

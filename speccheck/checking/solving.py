@@ -63,6 +63,9 @@ def solve(checker, doc, name: str, result) -> Solution:
                 return 1.0
         return 0.0
 
+    unknown = next((f.message for f in result.findings if f.rule == "target-unknown"), None)
+    if unknown is not None:  # no value meets a target the numbers do not determine: say what would
+        return Solution(name, None, None, inp.dimension, inp.value, inp.display_unit, False, unknown)
     found = seek.region(ok, t0, ok(t0), lo, hi, (-0.5, 0.5), step, BUDGET)
     if found is None or not found.reachable:
         errors = sorted({f.rule for f in result.findings if f.severity == "error"})

@@ -5,9 +5,9 @@ from __future__ import annotations
 from speccheck.reading.units import UnitSystem, choose_unit, format_number, format_quantity
 
 
-def show(units: UnitSystem, si: float, unit: str) -> str:
-    """An SI value in ``unit`` (or a prefix of it that fits the number)."""
-    return format_quantity(units, si, choose_unit(units, si, unit))
+def show(units: UnitSystem, si: float, unit: str, digits: int = 4) -> str:
+    """An SI value in ``unit`` (or a prefix of it that fits the number), to ``digits`` significant digits."""
+    return format_quantity(units, si, choose_unit(units, si, unit), digits)
 
 
 def join(parts) -> str:

@@ -200,9 +200,9 @@ def _choose_unit(units: UnitSystem, si_value: float, display_unit: str, keep: bo
     return best
 
 
-def format_quantity(units: UnitSystem, si_value: float, unit_text: str) -> str:
+def format_quantity(units: UnitSystem, si_value: float, unit_text: str, digits: int = 4) -> str:
     if unit_text == "1":
-        return format_number(si_value)
+        return format_number(si_value, digits)
     value = si_value / units.factor(unit_text)
     sep = "" if unit_text == "%" else " "
-    return f"{format_number(value)}{sep}{pretty_unit(unit_text)}"
+    return f"{format_number(value, digits)}{sep}{pretty_unit(unit_text)}"

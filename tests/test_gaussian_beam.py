@@ -71,6 +71,20 @@ def test_a_telescope_images_its_entrance_and_scales_q_by_m_squared():
     assert gb.radius(gb.apply(gb.relay(m), q), LAM) == pytest.approx(m * gb.radius(q, LAM))
 
 
+def test_a_galilean_telescope_is_a_negative_lens_and_a_positive_one():
+    # f1 = −50 mm, m = 3: f2 = +150 mm, 100 mm apart, upright (A = +m, C = 0): checked against the
+    # product of the three matrices written out by hand (thin lens (1, 0, −1/f, 1), free space
+    # (1, d, 0, 1); Kogelnik and Li 1966); a 1 mm beam leaves m times wider (to the 2e-4 its
+    # diffraction over the 100 mm adds)
+    f1, f2, d = -0.05, 0.15, 0.10
+    by_hand = (1 - d / f1, d, -1 / f1 - 1 / f2 + d / (f1 * f2), 1 - d / f2)
+    assert gb.telescope(f1, 3.0) == pytest.approx(by_hand, abs=1e-12)
+    assert by_hand[0] == pytest.approx(3.0) and by_hand[2] == pytest.approx(0.0, abs=1e-12)
+    q = gb.at_waist(1e-3, LAM)
+    out = gb.apply(gb.telescope(f1, 3.0), q)
+    assert gb.radius(out, LAM) == pytest.approx(3 * gb.radius(q, LAM), rel=1e-3)
+
+
 def test_a_beam_is_found_from_its_size_at_a_plane_and_its_waist_or_divergence():
     w0, z = 1e-3, 0.8
     q = gb.at_waist(w0, LAM, past=z)  # 0.8 m past the waist

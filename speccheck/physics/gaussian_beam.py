@@ -50,9 +50,10 @@ def relay(magnification: float) -> Matrix:
 
 
 def telescope(f1: float, magnification: float) -> Matrix:
-    """Two thin lenses f1 and f2 = m·f1 separated by f1 + f2 (Keplerian with f1 > 0, Galilean with
-    f1 < 0), from the first lens to the second."""
-    f2 = magnification * f1
+    """Two thin lenses f1 and f2 = m·|f1| separated by f1 + f2, from the first lens to the second: a
+    Keplerian telescope with f1 > 0 (f2 > 0, the beam inverted), a Galilean one with f1 < 0 (a negative
+    first lens and a positive second, |f2/f1| = m, f1 + f2 = (m − 1)|f1| apart, the beam upright)."""
+    f2 = magnification * abs(f1)
     return compose(lens(f1), free(f1 + f2), lens(f2))
 
 

@@ -281,3 +281,32 @@ def test_bad_values_of_the_beams_keys_get_findings_not_tracebacks(check, key, ra
             out, err = io.StringIO(), io.StringIO()
             code = run(["check", "--no-config", "--format", name, str(spec)], out, err)
             assert code in (0, 1) and "Traceback" not in err.getvalue() and out.getvalue()
+
+
+def test_a_plate_in_a_converging_beam_is_judged_on_its_exit_face(check):
+    # 8 mm, 2 mJ at 800 nm through a 500 mm lens; a 20 mm fused-silica block 300 mm on, rated 0.11 J/cm²
+    # (safety factor 2).  By the closed form (Self 1983 for the waist behind the lens, then
+    # w(z) = w0' √(1 + ((z − s')/z_R')²) with the plate as its reduced length L/n, n = 1.4533 at
+    # 800 nm, Malitson's Sellmeier, from memory): the entrance face sees F = 2E/(πw²) with margin
+    # above 2, the exit face (the beam smaller) below it.
+    r = check("""
+        laser: {wavelength: 800 nm, repetition_rate: 1 kHz, pulse_energy: 2 mJ, pulse_duration: 100 fs,
+                beam_diameter: 8 mm, m2: 1}
+        path:
+          - {name: lens, kind: lens, focal_length: 500 mm}
+          - {name: block, kind: material, material: fused_silica, thickness: 20 mm, distance: 300 mm,
+             transmission: 100%, damage_threshold: {fluence: 0.11 J/cm^2}}
+        """)
+    lam, w, f = 800e-9, 4e-3, 0.5
+    z_r = math.pi * w**2 / lam
+    w0 = w / math.sqrt(1 + (z_r / f) ** 2)
+    s = f / (1 + (f / z_r) ** 2)
+    z_r2 = math.pi * w0**2 / lam
+
+    def fluence(z):
+        return 2 * 2e-3 / (math.pi * (w0 * math.sqrt(1 + ((z - s) / z_r2) ** 2)) ** 2)
+
+    entrance, exit_ = fluence(0.3), fluence(0.3 + 0.02 / 1.4533)
+    assert 1100 / entrance > 2 > 1100 / exit_  # J/m²: the two faces fall either side of the factor
+    [f] = [f for f in r.findings if f.rule == "optic-damage-margin"]
+    assert "exit face" in f.message and f"{exit_ / 1e4:.4g}" in f.message.replace("J/cm²", "")

@@ -257,8 +257,13 @@ def optic_damage(walk, v: Visit) -> None:
         walk.report.add(e.rule, e.message, where)
         return
     fluence, tau, lam = (incident.get(q) for q in ("peak_fluence", "pulse_duration", "wavelength"))
+    face = ""
     if fluence and fluence.value:  # on the optic: at its entrance plane, after the stage's distance
         fluence = fluence._replace(value=entrance_value(v, "peak_fluence"))
+        # a plate's exit face sees the beam as it leaves (smaller in a converging beam): the worse face
+        leaving = (v.cells or {}).get("peak_fluence") if "thickness" in v.params else None
+        if leaving is not None and leaving.value and leaving.value > fluence.value:
+            fluence, face = fluence._replace(value=leaving.value), " (on its exit face, where the beam is smaller)"
     if not fluence or not fluence.value or not rated.typical:
         walk.report.add("target-unknown", f"{name}: the peak fluence on this optic is not determined, so its "
                         "damage threshold cannot be checked", where, key=True)
@@ -275,7 +280,7 @@ def optic_damage(walk, v: Visit) -> None:
         notes.append(f"rated at {walk.show('wavelength', lam_ref, 'nm')}, used at "
                      f"{walk.show('wavelength', lam.value, 'nm')}")
     margin = threshold / fluence.value
-    text = (f"{name}: peak fluence {walk.show('peak_fluence', fluence.value, 'J/cm^2')} on an optic rated "
+    text = (f"{name}: peak fluence {walk.show('peak_fluence', fluence.value, 'J/cm^2')}{face} on an optic rated "
             f"{rated.text}; margin {margin:.3g}×" + ("; " + "; ".join(notes) if notes else ""))
     if margin < 1:
         walk.report.add("optic-damage", text + ". Expect damage to this optic.", where, key=True)

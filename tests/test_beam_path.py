@@ -310,3 +310,27 @@ def test_a_plate_in_a_converging_beam_is_judged_on_its_exit_face(check):
     assert 1100 / entrance > 2 > 1100 / exit_  # J/m²: the two faces fall either side of the factor
     [f] = [f for f in r.findings if f.rule == "optic-damage-margin"]
     assert "exit face" in f.message and f"{exit_ / 1e4:.4g}" in f.message.replace("J/cm²", "")
+
+
+def test_a_focal_length_of_zero_is_the_stages_own_error_and_a_later_stage_target_says_it_is_not_judged(check):
+    r = check("""
+        laser: {wavelength: 1030 nm, repetition_rate: 10 kHz, pulse_energy: 100 µJ, pulse_duration: 300 fs,
+                beam_diameter: 5 mm, m2: 1}
+        path:
+          - {name: L1, kind: lens, focal_length: 0 mm}
+          - {name: c, kind: focus, focal_length: 100 mm, target: {peak_intensity: ">= 1e12 W/cm^2"}}
+        """)
+    errors = [f for f in r.findings if f.severity == "error"]
+    assert [f.rule for f in errors] == ["stage-parameter"] and "not 0" in errors[0].message
+    assert any(f.rule == "target-unknown" and f.line == 6 and "'L1'" in f.message for f in r.findings)
+
+
+def test_an_aperture_that_clips_much_of_the_beam_says_what_follows_is_not_reliable(check):
+    r = check("""
+        laser: {wavelength: 800 nm, pulse_energy: 1 mJ, pulse_duration: 50 fs, beam_diameter: 8 mm, m2: 1}
+        path:
+          - {name: iris, kind: optic, clear_aperture: 4 mm}
+        """)
+    [f] = [f for f in r.findings if f.rule == "aperture-clipping"]
+    # 1 − exp(−2 (2/4)²) = 39 % passes, 61 % clipped (by hand)
+    assert "60.7%" in f.message and "not reliable" in f.message

@@ -12,6 +12,7 @@ from speccheck.reading.values import ValueProblem
 
 NA_NOTE_FROM = 0.4  # a focusing NA above about this leaves the paraxial spot and intensity (common practice)
 CLIPPING_WARN = 0.01  # the share of the power an aperture may clip before it is said
+ROUGH = 0.10  # …and beyond which the Gaussian carried on is not a fair picture (common practice)
 
 
 def entrance_value(v, quantity: str) -> float | None:
@@ -80,7 +81,9 @@ def clear_aperture(walk, v) -> None:
                         + (f" (up to {100 * worst:.3g}% within the tolerances)" if worst > clipped * 1.01 else "")
                         + "; the numbers after it count that loss, but not the diffraction of the clipped edge, "
                         "which they take as the same Gaussian beam (a Gaussian through a circular aperture loses "
-                        "exp(−2a²/w²); keep the aperture above about 1.5× the beam's 1/e² diameter)", where,
+                        "exp(−2a²/w²); keep the aperture above about 1.5× the beam's 1/e² diameter)"
+                        + (". With this much clipped the beam after it is far from Gaussian: its spot, intensity "
+                           "and fluence further on are not reliable" if clipped > ROUGH else ""), where,
                         quantities=(f"{v.name}.beam_diameter",))
 
 
@@ -97,8 +100,8 @@ def focus_spot(walk, v) -> None:
     if g is not None and gb.waist_ahead(g.q[0]) >= 0.0:
         na = gb.numerical_aperture(g.q[0], g.lam[0])
         if na > NA_NOTE_FROM:
-            why.append(f"the focusing numerical aperture is {na:.2g} (the far-field half angle of the waist "
-                       f"ahead, M²λ/(π w0)), above about {NA_NOTE_FROM:g} (common practice)")
+            why.append(f"the focusing numerical aperture is {na:.2g} (sin θ of the far-field half angle "
+                       f"θ = atan(M²λ/(π w0)) of the waist ahead), above about {NA_NOTE_FROM:g} (common practice)")
     if why:
         walk.report.add("non-paraxial-focus", f"{name}: " + " and ".join(why) + ": outside the paraxial "
                         "Gaussian-beam model, so the spot and intensity are estimates (a vector-diffraction "

@@ -182,8 +182,8 @@ def self_focusing(walk, v: Visit) -> None:
         if z_f is not None and math.isfinite(wavefront):  # in the glass the wavefront radius is n times longer
             z_f = gb.converging_collapse(z_f, wavefront * n0)
             where += (f"; the collapse distance for its {'converging' if wavefront < 0 else 'diverging'} wavefront "
-                      f"(R = {walk.show('beam_radius', abs(wavefront), 'mm')} at the entrance) by Marburger's "
-                      "lens transformation 1/z_f' = 1/z_f − 1/(n0 R)")
+                      f"(R = {walk.show('beam_radius', wavefront, 'mm')} at the entrance, negative converging) by "
+                      "Marburger's lens transformation 1/z_f' = 1/z_f − 1/(n0 R)")
         if (peak.high or peak.value) > p_low and z_f is not None and z_f < length:
             walk.report.add("self-focusing" if solid else "self-focusing-air",
                             f"{name}: the peak power {shown} is above the critical power for self-focusing "

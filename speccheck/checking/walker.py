@@ -114,6 +114,11 @@ class PathWalk:
                 self.report.add(e.rule, e.message, at + (p.name,), quantities=(label,))
                 ok = False
                 continue
+            if p.signed and p.dimension not in _SIGNED and s.low <= 0.0 <= s.high:  # a focal length
+                self.report.add("stage-parameter", f"{label}: {s.text} is 0 or spans 0; a focal length may be "
+                                "negative (a diverging lens) or positive, not 0", at + (p.name,), quantities=(label,))
+                ok = False
+                continue
             if p.zero and s.low < 0.0:
                 self.report.add("non-positive-value", f"{label}: {s.text} must not be negative", at + (p.name,),
                                 quantities=(label,))
@@ -265,6 +270,8 @@ class PathWalk:
             params = self.params(stage, kind, here, name)
             if params is None or lost:  # past a stage whose beam is not known, parameters are only read
                 lost = lost or name
+                if lost != name:  # a target of a stage further on is not judged either, and says so
+                    self.broken(lost, stage.get("target"), here + ("target",))
                 continue
             notes: list = []
             ctx = self.stage_context(notes)

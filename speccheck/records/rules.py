@@ -248,7 +248,8 @@ _RULES = (
          "A stage's `clear_aperture` (its diameter) is compared with the 1/e² diameter of the beam on it, "
          "after the stage's `distance`. A Gaussian beam of 1/e² radius w through a circular aperture of "
          "radius a loses exp(−2a²/w²) of its power: more than 1 % when the aperture is below about 1.5× "
-         "the beam's 1/e² diameter. The loss is not subtracted; the clipped edge also diffracts.",
+         "the beam's 1/e² diameter. The columns from that stage on count the loss; the clipped edge also "
+         "diffracts, which they do not model (the beam is carried on as the same Gaussian).",
          "{name: window, kind: material, material: fused_silica, thickness: 3 mm, clear_aperture: 10 mm}"
          "  # on an 8 mm beam",
          "{name: window, kind: material, material: fused_silica, thickness: 3 mm, clear_aperture: 20 mm}"),

@@ -334,3 +334,28 @@ def test_an_aperture_that_clips_much_of_the_beam_says_what_follows_is_not_reliab
     [f] = [f for f in r.findings if f.rule == "aperture-clipping"]
     # 1 − exp(−2 (2/4)²) = 39 % passes, 61 % clipped (by hand)
     assert "60.7%" in f.message and "not reliable" in f.message
+
+
+def test_a_wavefront_radius_near_a_waist_is_open_where_the_tolerances_put_the_waist_on_both_sides(check):
+    # 1 mm (± 5 %) at its waist on a 1 m lens: the waist lands at s' = f/(1 + (f/z_R)²) (Self 1983), which
+    # moves with the diameter; a plane between the two ends of s' has R of either sign (|R| ≥ 2 z_R),
+    # so its interval is open on both sides, not one through 0
+    lam, f = 1030e-9, 1.0
+    ends = []
+    for d in (0.95e-3, 1.05e-3):
+        z_r = math.pi * (d / 2) ** 2 / lam
+        ends.append(f / (1 + (f / z_r) ** 2))
+    plane = round(sum(ends) / 2, 9)  # as written in the spec, to the nanometre
+    r = check(f"""
+        laser: {{wavelength: 1030 nm, pulse_energy: 1 µJ, pulse_duration: 300 fs, beam_diameter: 1 mm, m2: 1}}
+        path:
+          - {{name: lens, kind: lens, focal_length: 1000 mm}}
+          - {{name: here, kind: sample, distance: {plane * 1e3:.6f} mm}}
+        """)
+    radius = cell(r, "wavefront_radius", "here")
+    assert min(ends) < plane < max(ends) and radius.low is None and radius.high is None
+    # the typical value is R = z + z_R'²/z of the typical beam (z past its waist), by hand
+    z_r = math.pi * 0.5e-3**2 / lam
+    w0 = 0.5e-3 / math.sqrt(1 + (z_r / f) ** 2)
+    z, z_r2 = plane - f / (1 + (f / z_r) ** 2), math.pi * w0**2 / lam
+    assert radius.value == pytest.approx(z + z_r2**2 / z, rel=1e-6)

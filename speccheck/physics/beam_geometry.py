@@ -99,7 +99,13 @@ class Geometry:
             zr.append(b)
             ahead.append(-z)
             waist.append(2.0 * math.sqrt(lam * b / math.pi))
-        return {"wavefront_radius": self.combine(r, False), "rayleigh_range": self.combine(zr, True),
+        radius = self.combine(r, False)
+        # R jumps through infinity at a waist (|R| ≥ 2 z_R on either side): states on both sides of one,
+        # or moves that reach 0, leave it open on both sides instead of an interval through 0
+        if math.isfinite(radius[1]) and (radius[0] < 0.0 < radius[2] or any(
+                math.isfinite(x) and x * radius[1] < 0.0 for x in r[1:])):
+            radius = (-math.inf, radius[1], math.inf)
+        return {"wavefront_radius": radius, "rayleigh_range": self.combine(zr, True),
                 "waist_distance": self.combine(ahead, False), "waist_diameter": self.combine(waist, True)}
 
     @cached_property

@@ -359,3 +359,17 @@ def test_a_wavefront_radius_near_a_waist_is_open_where_the_tolerances_put_the_wa
     w0 = 0.5e-3 / math.sqrt(1 + (z_r / f) ** 2)
     z, z_r2 = plane - f / (1 + (f / z_r) ** 2), math.pi * w0**2 / lam
     assert radius.value == pytest.approx(z + z_r2**2 / z, rel=1e-6)
+
+
+def test_a_focus_says_where_its_waist_lies_when_that_is_not_at_its_focal_length(check):
+    # 0.5 mm at 1030 nm on a 200 mm focus: z_R = 191 mm, so the waist is at s' = f/(1 + (f/z_R)²) = 95.21 mm
+    # (Self 1983, by hand), which is where the next stage's distance starts
+    r = check("""
+        laser: {wavelength: 1030 nm, repetition_rate: 10 kHz, pulse_energy: 100 µJ, pulse_duration: 300 fs,
+                beam_diameter: 0.5 mm, m2: 1}
+        path:
+          - {name: f, kind: focus, focal_length: 200 mm}
+        """)
+    z_r = math.pi * 0.25e-3**2 / 1030e-9
+    s = 0.2 / (1 + (0.2 / z_r) ** 2)
+    assert any(f.rule == "stage-model" and f"{s * 1e3:.4g} mm after the optic" in f.message for f in r.findings)

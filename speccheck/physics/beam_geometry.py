@@ -268,6 +268,10 @@ def focus(beam: Beam, p: dict, ctx) -> Beam:
         ctx.note(f"the beam after this optic has no waist ahead of it (its waist is {-ahead * 1e3:.4g} mm "
                  "before it): the column shows the beam just after the optic")
         return with_geometry(beam, g)
+    f = p["focal_length"][1]
+    if abs(ahead - f) > 1e-3 * abs(f):  # where the next stage's distance starts from, when not at f
+        ctx.note(f"its waist lies {ahead * 1e3:.4g} mm after the optic, not at its focal length "
+                 f"{f * 1e3:.4g} mm (the next stage's distance counts from the waist)")
     return with_geometry(beam, g.to_waists())
 
 

@@ -373,3 +373,27 @@ def test_a_focus_says_where_its_waist_lies_when_that_is_not_at_its_focal_length(
     z_r = math.pi * 0.25e-3**2 / 1030e-9
     s = 0.2 / (1 + (0.2 / z_r) ** 2)
     assert any(f.rule == "stage-model" and f"{s * 1e3:.4g} mm after the optic" in f.message for f in r.findings)
+
+
+def test_a_waist_position_names_both_beams_it_fits_and_a_divergence_stated_too_is_checked(check):
+    # w² = w0² + (M²λz/(π w0))² has two roots in w0² (by hand): the larger is taken, the other named
+    lam_eff, w, z = 1.3 * 1030e-9, 2.5e-3, 2.0
+    a = lam_eff * z / math.pi
+    big = math.sqrt((w**2 + math.sqrt(w**4 - 4 * a * a)) / 2)
+    small = math.sqrt((w**2 - math.sqrt(w**4 - 4 * a * a)) / 2)
+    laser = ("{wavelength: 1030 nm, repetition_rate: 10 kHz, pulse_energy: 20 µJ, pulse_duration: 250 fs, "
+             "beam_diameter: 5 mm, m2: 1.3, %s}")
+    spec = "laser: " + laser + "\npath:\n  - {name: s, kind: sample, distance: 1 m}\n"
+    r = check(spec % "waist_position: -2 m")
+    [note] = [f for f in r.findings if f.rule == "stage-model" and "two beams" in f.message]
+    assert f"{2 * big * 1e3:.4g} mm waist" in note.message and f"{2 * small * 1e6:.4g} µm waist" in note.message
+    # with a divergence, the beam it gives (waist √(w² − w0²)/θ½ behind, w0 = M²λ/(π θ½)) is checked
+    # against the stated position, within its 10 % and 5 % more
+    half = 0.25e-3
+    w0 = lam_eff / (math.pi * half)
+    behind = math.sqrt(w**2 - w0**2) / half  # 7.31 m
+    good = check(spec % f"waist_position: -{behind:.4f} m, beam_divergence: 0.5 mrad")
+    assert not [f for f in good.findings if f.severity == "error"]
+    bad = check(spec % "waist_position: -4 m, beam_divergence: 0.5 mrad")
+    [f] = [f for f in bad.findings if f.rule == "beam-geometry-impossible"]
+    assert f"{-behind * 1e3:.4g} mm" in f.message.replace("−", "-") or f"{-behind:.4g} m" in f.message

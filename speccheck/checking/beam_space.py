@@ -30,12 +30,10 @@ def at_laser(walk, beam: Beam) -> Beam:
     given = [k for k in PLACEMENT if laser.get(k) is not None]
     if not (d and lam and typical(d) and typical(lam)):
         return beam
-    if len(given) == 2:
-        walk.report.add("invalid-value", "laser: state waist_position or beam_divergence, not both (with the "
-                        "diameter and M² either one places the beam); waist_position is used",
-                        ("laser", "beam_divergence"))
     place = spread = None
-    key = given[0] if given else None
+    # both: the divergence places the beam (it has one beam, a waist position two) and the waist
+    # position is checked against it
+    key = "beam_divergence" if len(given) == 2 else given[0] if given else None
     if key is not None:
         try:
             s = walk.c.values.parse_as("laser.waist_position", laser[key], "m", walk.param_tolerance(key),
@@ -56,6 +54,8 @@ def at_laser(walk, beam: Beam) -> Beam:
             place = gb.at_plane if key == "waist_position" else gb.from_divergence
             spread = (s.low, s.typical, s.high)
     g = optics.start(d, lam, beam.get("m2"), place, spread)
+    if g is not None and place is not None:
+        _placed(walk, laser, g, key, len(given) == 2)
     if g is None and place is not None:
         m2 = typical(beam.get("m2")) if beam.get("m2") else 1.0
         shown = walk.show("beam_diameter", typical(d), "mm")
@@ -84,3 +84,40 @@ def cells(beam: Beam, units) -> dict:
         out[name] = Cell("derived", low if math.isfinite(low) else None, high if math.isfinite(high) else None,
                          typ, "m", choose_unit(units, ref, "mm"))
     return out
+
+
+def _placed(walk, laser: dict, g, key: str, both: bool) -> None:
+    """A waist position alone fits two beams of the stated diameter: the nearly collimated one is
+    taken, and a note names the other.  With a divergence too (a maker's sheet gives both), the
+    divergence places the beam and the waist position is checked against it, within 5 % of the
+    distance beyond its own tolerance, for the diameter and M² (common practice)."""
+    q, lam = g.q[0], g.lam[0]
+    w0 = math.sqrt(lam * q.imag / math.pi)
+    taken = 2.0 * lam / (math.pi * w0)  # full far-field angle of the 1/e² radius
+    if both:
+        try:
+            s = walk.c.values.parse_as("laser.waist_position", laser["waist_position"], "m",
+                                       walk.param_tolerance("waist_position"), signed=True)
+        except ValueProblem:
+            return  # said where the divergence alone is read
+        z = -q.real  # where the waist is, from the output plane
+        slack = 0.05 * max(abs(s.low), abs(s.high))
+        if s.typical is not None and not s.low - slack <= z <= s.high + slack:
+            walk.report.add("beam-geometry-impossible", f"laser.waist_position: {s.text} does not fit the beam "
+                            f"that beam_divergence and beam_diameter give, whose waist is "
+                            f"{walk.show('waist_position', z, 'mm')} from the output plane; one of them is wrong "
+                            "(beam_divergence is used)", ("laser", "waist_position"),
+                            quantities=("laser.waist_position", "laser.beam_divergence"))
+        return
+    if key != "waist_position":
+        return
+    w = gb.radius(q, lam)
+    other_sq = w * w - w0 * w0  # the other root of w² = w0² + (λz/(π w0))²: w0_a² + w0_b² = w²
+    if other_sq > 0.0:
+        other = math.sqrt(other_sq)
+        walk.report.add("stage-model", f"laser.waist_position: two beams have this diameter with their waist "
+                        f"there; the one taken has a {walk.show('beam_diameter', 2 * w0, 'mm')} waist and "
+                        f"{taken * 1e3:.4g} mrad full divergence, the other a "
+                        f"{walk.show('beam_diameter', 2 * other, 'mm')} waist and "
+                        f"{2.0 * lam / (math.pi * other) * 1e3:.4g} mrad; state beam_divergence as well to "
+                        "check it", ("laser", "waist_position"), key=True)

@@ -156,6 +156,9 @@ def test_a_target_no_single_input_can_meet_says_so(checker):
     assert f.remedies and not any(r.reachable for r in f.remedies)
     assert all(r.low is None and r.high is None for r in f.remedies)
     assert "No value of a single input was found to meet it" in f.message
+    # and the reason is said: 0.4413 λ²/(c Δλ) at the widest bandwidth the tolerances allow (by hand, the
+    # Gaussian's time-bandwidth product; the bandwidth's own tolerance is the default 5 %)
+    assert "No pulse of this spectrum can be that short: its transform limit is" in f.message
 
 
 def test_a_target_the_numbers_do_not_determine_names_what_would(checker):

@@ -90,7 +90,7 @@ def judge(walk, columns: list, target, target_at: tuple) -> None:
                             where, quantities=(f"{last}.{need.quantity}",))
             _record(walk, where, last, columns, need, value, "met", before, nominal)
         elif high < need_low or low > need_high:
-            cost = costliest(walk, columns, need)
+            cost = costliest(walk, columns, need) + _below_limit(walk, cells, need)
             walk.report.add("target-not-met",
                             f"target {key} {need.text} is not met at {last!r}: the path gives {shown}"
                             f"{_margin(value, need)}.{cost}", where,
@@ -105,6 +105,19 @@ def judge(walk, columns: list, target, target_at: tuple) -> None:
                             f"{said}, and within the tolerances it may go either way.", where,
                             quantities=(f"{last}.{need.quantity}",))
             _record(walk, where, last, columns, need, value, "uncertain", before, nominal)
+
+
+def _below_limit(walk, cells: dict, need: Stated) -> str:
+    """A duration asked for below what the column's spectrum allows at its widest: said as the reason."""
+    bw = cells.get("spectral_bandwidth")
+    shape = walk.stage_context([]).transform_limit
+    if need.quantity != "pulse_duration" or not (bw and bw.high and shape) or not math.isfinite(need.high):
+        return ""
+    shortest = shape / bw.high
+    if need.high >= shortest:
+        return ""
+    return (f" No pulse of this spectrum can be that short: its transform limit is "
+            f"{walk.show('pulse_duration', shortest, 'fs')} at the widest bandwidth here.")
 
 
 def _margin(value: float, need: Stated) -> str:

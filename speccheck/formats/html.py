@@ -30,66 +30,24 @@ from html import escape
 from typing import Callable
 
 from speccheck._version import __version__
+from speccheck.formats import cell_text
 from speccheck.formats.html_style import CSS
 from speccheck.records.findings import Cell, FileResult, Finding, SEVERITIES
 from speccheck.physics.shapes import DEFAULT_SHAPE
-from speccheck.reading.units import choose_unit, format_number, format_quantity, pretty_unit
 
 INSTALL_HINT = "pip install 'speccheck[report]'"
 MAX_CURVES = 8  # curves in one plot (a path with many branches shows its first ones)
 MAX_FOCI = 6
-_STATUS_MARK = {"stated": "", "derived": "=", "conflict": "!"}
 _CSP = "default-src 'none'; style-src 'unsafe-inline'; img-src data:; base-uri 'none'; form-action 'none'"
 
 # ---------------------------------------------------------------- numbers
-class _Show:
-    def __init__(self, units) -> None:
-        self.units = units
-
-    def __call__(self, si: float | None, unit: str) -> str:
-        if si is None:
-            return "—"
-        try:
-            return format_quantity(self.units, si, unit)
-        except Exception:  # a display unit pint cannot read: show the SI number instead
-            return format_number(si)
-
-    def bare(self, si: float, unit: str) -> str:
-        try:
-            return format_number(si / self.units.factor(unit)) if unit != "1" else format_number(si)
-        except Exception:
-            return format_number(si)
-
-    def span(self, low, high, unit: str) -> str:
-        if low is not None and high is not None:
-            text = f"{self.bare(low, unit)} … {self.bare(high, unit)}"
-        elif low is not None:
-            text = f"≥ {self.bare(low, unit)}"
-        elif high is not None:
-            text = f"≤ {self.bare(high, unit)}"
-        else:
-            return "unbounded"
-        return text if unit == "1" else f"{text} {pretty_unit(unit)}"
-
-    def prefixed(self, si: float, unit: str) -> str:
-        try:
-            return choose_unit(self.units, si, unit)
-        except Exception:
-            return unit
-
-
-def _cell_main(cell: Cell, show: _Show) -> str:
-    unit = cell.display_unit or cell.unit
-    if cell.status in ("stated", "conflict") and cell.text:
-        return cell.text
-    if cell.value is not None:
-        return show(cell.value, unit)
-    return show.span(cell.low, cell.high, unit)
+_Show = cell_text.Numbers
 
 
 def _cell_title(cell: Cell, show: _Show) -> str:
     unit = cell.display_unit or cell.unit
-    parts = [cell.status + (" (default value)" if cell.assumed else "")]
+    parts = [cell.status + (" (default value)" if cell.assumed else "")
+             + (", " + cell_text.MEANING["inherited"] if cell.inherited else "")]
     if (cell.low is not None or cell.high is not None) and not (
             cell.low is not None and cell.high is not None and cell.low > 0 and cell.high / cell.low <= 1 + 1e-9):
         ref = cell.value or cell.low or cell.high
@@ -255,8 +213,10 @@ def _grid(result: FileResult, show: _Show, n: int) -> str:
            '<span class="c-derived"><span class="mark">=</span>derived</span>'
            '<span class="c-conflict"><span class="mark">!</span>conflict</span>'
            '<span><span class="assumed">(default)</span> a default value</span>'
-           + ('<span><span class="assumed">(--set)</span> set on the command line</span>'
-              if any(c.overridden for cells in sheet.values() for c in cells.values()) else "") + '</p>',
+           + "".join(f'<span><span class="mark">{e(mark)}</span>{e(words)}</span>' if mark != cell_text.SET_MARK
+                     else f'<span><span class="assumed">(--set)</span> {e(words)}</span>'
+                     for mark, words in cell_text.legend(c for cells in sheet.values() for c in cells.values()))
+           + '</p>',
            f'<div class="scroll" role="region" aria-labelledby="sheet-{n}" tabindex="0">'
            f'<table class="sheet" data-rows="{len(rows)}" data-columns="{len(sheet)}">'
            f'<caption id="sheet-{n}">Sheet: {len(rows)} quantities × {len(sheet)} '
@@ -272,12 +232,16 @@ def _grid(result: FileResult, show: _Show, n: int) -> str:
             if cell is None:
                 line.append('<td class="c-none"></td>')
                 continue
-            status = cell.status if cell.status in _STATUS_MARK else "derived"
-            mark = _STATUS_MARK[status]
-            text = [f'<td class="c-{status}" data-status="{status}" title="{e(_cell_title(cell, show))}">']
+            status = cell.status if cell.status in cell_text.STATUS_MARK else "derived"
+            mark = cell_text.STATUS_MARK[status]
+            text = [f'<td class="c-{status}{" c-inherited" if cell.inherited else ""}" data-status="{status}"'
+                    f'{" data-inherited" if cell.inherited else ""} title="{e(_cell_title(cell, show))}">']
             if mark:
                 text.append(f'<span class="mark" aria-hidden="true">{mark}</span>')
-            text.append(f'<span class="vh">{status}: </span>{e(_cell_main(cell, show))}')
+            if cell.inherited:
+                text.append(f'<span class="mark" aria-hidden="true">{cell_text.INHERITED_MARK}</span>'
+                            '<span class="vh">from the laser block, </span>')
+            text.append(f'<span class="vh">{status}: </span>{e(cell_text.shown(cell, show))}')
             if cell.assumed:
                 text.append(' <span class="assumed">(default)</span>')
             if cell.overridden:

@@ -67,3 +67,49 @@ def test_an_unknown_key_in_a_point_is_suggested(check):
     result = check(SHEET.replace("    pulse_energy: 20 µJ", "    pulse_enegry: 20 µJ"))
     (finding,) = result.findings
     assert finding.rule == "unknown-key" and "pulse_energy" in finding.message and finding.line == 13
+
+
+# -- the review of a sheet with operating points: one short page
+REVIEW_LINES = 25  # the budget: a table, the impossible claims, each implied number once
+
+
+def review_of(path) -> str:
+    import io
+
+    from speccheck.cli import run
+
+    out = io.StringIO()
+    run(["check", "--no-config", "--review", str(path)], out, io.StringIO())
+    return out.getvalue()
+
+
+def test_the_review_of_operating_points_is_a_table_on_one_short_page():
+    from pathlib import Path
+
+    text = review_of(Path(__file__).resolve().parent.parent / "example_specs" / "maker-sheet-operating-points.yaml")
+    lines = text.splitlines()
+    assert len(lines) <= REVIEW_LINES, text
+    header = next(i for i, line in enumerate(lines) if line.split() == ["rate", "energy", "power", "duration",
+                                                                         "peak", "power", "verdict"])
+    rows = {line.split()[0] + " " + line.split()[1]: line for line in lines[header + 2:header + 6]}
+    assert set(rows) == {"50 kHz", "100 kHz", "1 MHz", "2 MHz"}
+    assert rows["50 kHz"].rstrip().endswith("consistent") and "≥ 380 µJ → 380 … 400 µJ" in rows["50 kHz"]
+    assert rows["100 kHz"].rstrip().endswith("contradiction (line 18)")
+    assert rows["2 MHz"].rstrip().endswith("beyond the sheet's limits (line 27)")
+    assert "=1.191 GW" in rows["50 kHz"] and "=37.99 MW" in rows["2 MHz"]
+    # each implied number once: the peak powers in the table, never again in a sentence per point
+    assert text.count("1.191 GW") == 1 and text.count("60.78 MW") == 1
+    assert "this spec implies" not in text and "Implied: peak power" not in text
+    assert text.index("Impossible or contradictory") > header
+
+
+def test_each_implied_quantity_is_said_once_in_a_review_of_a_path():
+    import re
+    from pathlib import Path
+
+    text = review_of(Path(__file__).resolve().parent.parent / "example_specs" / "amplifier-pump-probe-path.yaml")
+    implied = [" ".join(line.split()) for line in " ".join(text.splitlines()).split("Implied: ")[1:]]
+    phrases = [re.match(r"[^0-9]+", line).group().strip() for line in implied]  # the quantity's words
+    assert len(implied) >= 4 and len(set(phrases)) == len(phrases), phrases
+    assert "'pump_lens'" in implied[0] and "'probe_lens'" in implied[0] and "at the laser" in implied[0]
+    assert "end: probe_lens" in text and "target not met (line 40)" in text

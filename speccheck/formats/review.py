@@ -15,7 +15,6 @@ from rich.text import Text
 from speccheck.formats import cell_text, points
 from speccheck.formats.human import QuietConsole
 from speccheck.records.findings import FileResult, SEVERITIES
-from speccheck.physics.quantities import BY_NAME
 from speccheck.reading.units import choose_unit, format_quantity
 
 _STYLE = {"error": "bold red", "warning": "yellow", "note": "cyan"}

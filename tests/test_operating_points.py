@@ -113,3 +113,48 @@ def test_each_implied_quantity_is_said_once_in_a_review_of_a_path():
     assert len(implied) >= 4 and len(set(phrases)) == len(phrases), phrases
     assert "'pump_lens'" in implied[0] and "'probe_lens'" in implied[0] and "at the laser" in implied[0]
     assert "end: probe_lens" in text and "target not met (line 40)" in text
+
+
+# -- awkward operating points through every format
+AWKWARD = """spec_version: 1
+title: awkward points
+laser:
+  wavelength: 1030 nm
+  repetition_rate: {min: 10 kHz, max: 4 MHz}
+  pulse_energy: "<= 1e90 J"
+  average_power: {min: 1 W, typical: 20 W, max: 40 W}
+  pulse_duration: 290 fs
+operating_points:
+  - {name: only a rate, repetition_rate: 100 kHz}
+  - {name: "1.5 MHz <b>&amp;</b>", repetition_rate: 1.5 MHz, pulse_energy: {min: 5 µJ, typical: 10 µJ}}
+  - {name: no rate, pulse_energy: "<= 3 µJ"}
+  - {name: "%s", repetition_rate: 2 MHz, average_power: ">= 39 W", pulse_energy: 30 µJ}
+  - {repetition_rate: 20 kHz, pulse_energy: 1 J}
+  - not a point
+""" % ("a long name " * 12)
+
+
+def test_awkward_operating_points_give_a_well_formed_report_in_every_format(tmp_path):
+    import io
+
+    from report_checks import FORMATS, output_problem
+    from speccheck.cli import run
+
+    spec = tmp_path / "awkward.yaml"
+    spec.write_text(AWKWARD, encoding="utf-8")
+    codes = set()
+    for fmt in FORMATS:
+        out, err = io.StringIO(), io.StringIO()
+        codes.add(run(["check", "--no-config", "--format", fmt, str(spec)], out, err))
+        assert output_problem(fmt, out.getvalue()) is None, (fmt, out.getvalue()[:2000])
+        assert "Traceback" not in err.getvalue() + out.getvalue(), fmt
+        if fmt == "review":
+            review = out.getvalue()
+        if fmt == "html":
+            page = out.getvalue()
+    assert codes == {1}  # 1 J at 20 kHz is 20 kW, beyond the sheet's 40 W; a point that is not a mapping
+    assert "only a rate" in review and "—" in review and "point 5" in review
+    assert "<b>" not in page and "&lt;b&gt;" in page and 'class="sheet points"' in page
+    assert "min 5 µJ, typ 10 µJ" in page  # the range as stated, in the points' table and the grid
+    # a typical value the rest leaves outside its interval (20 W where at most 12 W is left) is drawn
+    assert "not drawn" not in page or "matplotlib" in page

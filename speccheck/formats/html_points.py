@@ -88,6 +88,8 @@ def _numbers(c: Cell | None) -> tuple[float, float | None, float | None] | None:
         math.sqrt(c.low * c.high) if c.low and c.high else None)
     if value is None or not math.isfinite(value) or value <= 0:
         return None
+    # a typical value the rest of the spec leaves outside the interval is drawn at its edge
+    value = min(max(value, c.low if c.low is not None else value), c.high if c.high is not None else value)
     return value, c.low, c.high
 
 

@@ -247,8 +247,10 @@ def operating_points(units, points: list, limits: dict) -> str:
                 hi = (high - value) if high is not None else 0.0
                 ax.errorbar([p[1] / ff], [value / yf], yerr=[[lo / yf], [hi / yf]], fmt="x" if p[4] else "o",
                             color="#b91c1c" if p[4] else _COLOURS[0], markersize=6, capsize=3, linewidth=1.2)
-                ax.annotate(label(p[0]), (p[1] / ff, value / yf), textcoords="offset points", xytext=(5, 4),
-                            fontsize=7)
+                tag = label(p[0])
+                note = ax.annotate(tag if len(tag) <= 16 else tag[:15] + "…", (p[1] / ff, value / yf),
+                                   textcoords="offset points", xytext=(5, 4), fontsize=7, clip_on=True)
+                note.set_in_layout(False)  # a long name never squeezes the axes
             other = "average_power" if q == "pulse_energy" else "pulse_energy"
             for side in limits.get(q, ()):
                 if side:

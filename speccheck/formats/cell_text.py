@@ -26,8 +26,8 @@ MEANING = {
     "derived": "derived from the others",
     "conflict": "in conflict",
     "set": "set on the command line",
-    "inherited": "from the laser block, not restated at the point",
-    "narrowed": "what the rest of the spec leaves of a bound",
+    "inherited": "from the laser block",
+    "narrowed": "what the rest leaves of a bound",
 }
 
 _BOUND = re.compile(r"^\s*(>=|<=|=>|=<|≥|≤|>|<)\s*(.*?)\s*$")

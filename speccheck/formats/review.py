@@ -23,8 +23,6 @@ HEADLINE = ("pulse_energy", "average_power", "repetition_rate", "pulse_duration"
             "spectral_bandwidth", "spectral_bandwidth_wavelength", "time_bandwidth_product",
             "beam_diameter", "peak_intensity", "average_intensity", "peak_fluence", "peak_field")
 MAX_NAME = 18  # a column's name in the table, shortened beyond this
-_SHORT = {cell_text.INHERITED_MARK: "the laser block's", cell_text.NARROWED_MARK: "what the rest leaves of a bound",
-          cell_text.SET_MARK: "set with --set"}
 
 
 def _phrase(quantity: str) -> str:
@@ -63,8 +61,8 @@ def _table(console, result: FileResult, numbers) -> None:
         text = "  ".join(t.ljust(w) for t, w in zip(line, widths)).rstrip()
         style = "bold" if k == 0 else _STYLE.get(rows[k - 1].severity or "", "")
         console.print(Text("    " + text, style=style), no_wrap=True, overflow="ignore", crop=False)
-    marks = [("=", "implied by the rest"), ("!", "in conflict")]
-    marks += [(m, _SHORT.get(m, w)) for m, w in cell_text.legend(c for r in rows for c in r.cells if c is not None)]
+    marks = [("=", "implied"), ("!", "in conflict")]  # then the marks in use
+    marks += cell_text.legend(c for r in rows for c in r.cells if c is not None)
     console.print(Text("    " + "   ".join(f"{m} {w}" for m, w in marks), style="dim"))
 
 

@@ -138,7 +138,7 @@ def test_review_says_what_is_consistent_impossible_and_implied():
     code, out, _ = cli("check", "--review", str(EXAMPLES / "oscillator-consistent.yaml"))
     text = " ".join(out.split())
     # By hand: 2 × 530 kW / (π (0.1 cm)²) = 3.37e7 W/cm².
-    assert "the peak intensity this spec implies is 3.37" in text
+    assert "Implied: spectral bandwidth 14.05 THz; time bandwidth product 0.3513; peak intensity 3.37" in text
     assert "No claim contradicts another." in text
 
 

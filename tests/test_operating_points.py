@@ -142,3 +142,96 @@ def test_a_point_under_the_sheets_bound_shows_what_its_own_values_give(check):
     energy = cell(r, "pulse_energy", "50 kHz").value
     assert 380e-6 < energy < 400e-6
     assert cell(r, "peak_power", "50 kHz").value == pytest.approx(0.8814 * energy / 300e-15, rel=1e-3)
+
+# -- the review of a sheet with operating points: one short page
+REVIEW_LINES = 30  # the budget: a table, the impossible claims (with a target missed at one point), each implied number once
+
+
+def review_of(path) -> str:
+    import io
+
+    from speccheck.cli import run
+
+    out = io.StringIO()
+    run(["check", "--no-config", "--review", str(path)], out, io.StringIO())
+    return out.getvalue()
+
+
+def test_the_review_of_operating_points_is_a_table_on_one_short_page():
+    from pathlib import Path
+
+    text = review_of(Path(__file__).resolve().parent.parent / "example_specs" / "maker-sheet-operating-points.yaml")
+    lines = text.splitlines()
+    assert len(lines) <= REVIEW_LINES, text
+    header = next(i for i, line in enumerate(lines) if line.split() == ["rate", "energy", "power", "duration",
+                                                                         "peak", "power", "verdict"])
+    rows = {line.split()[0] + " " + line.split()[1]: line for line in lines[header + 2:header + 6]}
+    assert set(rows) == {"50 kHz", "100 kHz", "1 MHz", "2 MHz"}
+    # (the example's 50 MW target, judged at each point, is met at 50 kHz and 1 MHz, not at 2 MHz)
+    assert rows["50 kHz"].rstrip().endswith("consistent; target met (line 30)")
+    assert "≥ 380 µJ → 380 … 400 µJ" in rows["50 kHz"]
+    assert rows["100 kHz"].rstrip().endswith("contradiction (line 18)")
+    assert rows["2 MHz"].rstrip().endswith("beyond the sheet's limits (line 27); target not met (line 30)")
+    # 0.8814 × 389.9 µJ / 290 fs (the energy's range 380 … 400 µJ at its middle, by hand) and 12.5 µJ's
+    assert "=1.185 GW" in rows["50 kHz"] and "=37.99 MW" in rows["2 MHz"]
+    # each implied number once: the peak powers in the table, never again in a sentence per point
+    assert text.count("1.185 GW") == 1 and text.count("60.78 MW") == 1
+    assert "this spec implies" not in text and "Implied: peak power" not in text
+    assert text.index("Impossible or contradictory") > header
+
+
+def test_each_implied_quantity_is_said_once_in_a_review_of_a_path():
+    import re
+    from pathlib import Path
+
+    text = review_of(Path(__file__).resolve().parent.parent / "example_specs" / "amplifier-pump-probe-path.yaml")
+    implied = [" ".join(line.split()) for line in " ".join(text.splitlines()).split("Implied: ")[1:]]
+    phrases = [re.match(r"[^0-9]+", line).group().strip() for line in implied]  # the quantity's words
+    assert len(implied) >= 4 and len(set(phrases)) == len(phrases), phrases
+    assert "'pump_lens'" in implied[0] and "'probe_lens'" in implied[0] and "at the laser" in implied[0]
+    assert "end: probe_lens" in text and "target not met (line 40)" in text
+
+
+# -- awkward operating points through every format
+AWKWARD = """spec_version: 1
+title: awkward points
+laser:
+  wavelength: 1030 nm
+  repetition_rate: {min: 10 kHz, max: 4 MHz}
+  pulse_energy: "<= 1e90 J"
+  average_power: {min: 1 W, typical: 20 W, max: 40 W}
+  pulse_duration: 290 fs
+operating_points:
+  - {name: only a rate, repetition_rate: 100 kHz}
+  - {name: "1.5 MHz <b>&amp;</b>", repetition_rate: 1.5 MHz, pulse_energy: {min: 5 µJ, typical: 10 µJ}}
+  - {name: no rate, pulse_energy: "<= 3 µJ"}
+  - {name: "%s", repetition_rate: 2 MHz, average_power: ">= 39 W", pulse_energy: 30 µJ}
+  - {repetition_rate: 20 kHz, pulse_energy: 1 J}
+  - not a point
+""" % ("a long name " * 12)
+
+
+def test_awkward_operating_points_give_a_well_formed_report_in_every_format(tmp_path):
+    import io
+
+    from report_checks import FORMATS, output_problem
+    from speccheck.cli import run
+
+    spec = tmp_path / "awkward.yaml"
+    spec.write_text(AWKWARD, encoding="utf-8")
+    codes = set()
+    for fmt in FORMATS:
+        out, err = io.StringIO(), io.StringIO()
+        codes.add(run(["check", "--no-config", "--format", fmt, str(spec)], out, err))
+        assert output_problem(fmt, out.getvalue()) is None, (fmt, out.getvalue()[:2000])
+        assert "Traceback" not in err.getvalue() + out.getvalue(), fmt
+        if fmt == "review":
+            review = out.getvalue()
+        if fmt == "html":
+            page = out.getvalue()
+    assert codes == {1}  # 1 J at 20 kHz is 20 kW, beyond the sheet's 40 W; a point that is not a mapping
+    assert "only a rate" in review and "—" in review and "point 5" in review
+    assert "<b>" not in page and "&lt;b&gt;" in page and 'class="sheet points"' in page
+    assert "min 5 µJ, typ 10 µJ" in page  # the range as stated, in the points' table and the grid
+    # a typical value the rest leaves outside its interval (20 W where at most 12 W is left) is drawn
+    assert "not drawn" not in page or "matplotlib" in page

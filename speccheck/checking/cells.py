@@ -39,7 +39,7 @@ def build(col) -> dict[str, Cell]:
                 state = d.state if d.suspects else implied(col.net, col.log_stated, i)
                 ilo, ihi = (exp(state.lo[i]), exp(state.hi[i])) if state.ok else (None, None)
                 out[q] = Cell("conflict", low, high, value, quantity.si_unit, s.unit, ilo, ihi,
-                              text=s.text, overridden=col.overridden(q))
+                              text=s.text, overridden=col.overridden(q), inherited=col.from_laser(q))
             elif q in col.carried:
                 unit = col.unit_for(q, value) if value else s.unit
                 out[q] = Cell("derived", low, high, value, quantity.si_unit, unit)
@@ -50,7 +50,7 @@ def build(col) -> dict[str, Cell]:
                 if s.typical is None:
                     value = _typical_of(nominal.get(i), low, high)
                 out[q] = Cell("stated", low, high, value, quantity.si_unit, s.unit, text=s.text,
-                              overridden=col.overridden(q))
+                              overridden=col.overridden(q), inherited=col.from_laser(q))
         elif d.state.known(i) and i not in col.fixed:
             low, high = exp(d.state.lo[i]), exp(d.state.hi[i])
             value = centre(low, high)

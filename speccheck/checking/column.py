@@ -69,6 +69,10 @@ class BlockCheck:
         """Whether the value was set on the command line (``--set``; ``Document.mark_setting``)."""
         return self.report.doc.values.get(tuple(self.at(quantity)), (1,))[0] == 0
 
+    def from_laser(self, quantity: str) -> bool:
+        """Whether a value of an operating point is the laser block's, not restated at the point."""
+        return self.name != "laser" and quantity not in self.carried and self.at(quantity)[0] == "laser"
+
     def show(self, quantity: str, si: float, unit: str | None = None) -> str:
         return format_quantity(self.c.units, si, unit or self.unit_for(quantity, si))
 

@@ -62,7 +62,9 @@ def walk_points(checker, data: dict, tolerance, report: Report, points: dict, ou
                                f"values contradict each other ({where})")
                 kept[k] = len(report.findings)
                 message = message.replace("at 'laser'", "at this point")  # a path without stages ends at the laser
-                report.findings.append(replace(f, message=f"at operating point {name!r}: {message}"))
+                quantities = tuple(f"{name}.{q[6:]}" if q.startswith("laser.") else q for q in f.quantities)
+                report.findings.append(replace(f, message=f"at operating point {name!r}: {message}",
+                                               quantities=quantities))
         outcomes.extend(replace(o, finding=kept.get(o.finding), point=(index, name),
                                 verdict="unknown" if clash is not None else o.verdict) for o in found)
 

@@ -271,9 +271,11 @@ def _end(r: Remedy) -> float | None:
     x = r.value
     if x is None:
         return None
-    if r.low is not None and x < r.low:
+    # (an end where the input stops being what it can be is found to a bisection's width: a value
+    # at that end, as a point at the sheet's maximum, is inside)
+    if r.low is not None and x < r.low * (1 - (0.0 if r.binding[0] else 1e-3)):
         return r.low
-    if r.high is not None and x > r.high:
+    if r.high is not None and x > r.high * (1 + (0.0 if r.binding[1] else 1e-3)):
         return r.high
     ends = [e for e, b in zip((r.low, r.high), r.binding) if e is not None and b]
     return min(ends, key=lambda e: _distance(x, e), default=None)

@@ -5,8 +5,11 @@ message, and the rule's explanation in a ``<details>`` block), the sheet as a
 grid (rows are quantities, columns the laser and each operating point or
 stage; stated, derived and conflict cells differ in colour *and* carry a text
 mark), and plots: the temporal intensity profile of the pulse, its spectrum
-and the beam radius around each focus.  A laser-safety caution stands at the
-top whenever a file has a ``laser-safety`` finding.
+and the beam radius around each focus; for a spec with operating points, their
+table with a verdict per point and a plot of energy and power against rate with
+the sheet's limits (``html_points.py``, which also writes the grid's cells).  A
+laser-safety caution stands at the top whenever a file has a ``laser-safety``
+finding, said there once: the finding in the file's list points to it.
 
 Self-contained: inline CSS and inline SVG, no scripts, fonts, images or
 links to anything outside the page, and a Content-Security-Policy that forbids
@@ -30,79 +33,18 @@ from html import escape
 from typing import Callable
 
 from speccheck._version import __version__
+from speccheck.formats import cell_text, html_points
 from speccheck.formats.html_style import CSS
-from speccheck.records.findings import Cell, FileResult, Finding, SEVERITIES
+from speccheck.records.findings import FileResult, Finding, SEVERITIES
 from speccheck.physics.shapes import DEFAULT_SHAPE
-from speccheck.reading.units import choose_unit, format_number, format_quantity, pretty_unit
 
 INSTALL_HINT = "pip install 'speccheck[report]'"
 MAX_CURVES = 8  # curves in one plot (a path with many branches shows its first ones)
 MAX_FOCI = 6
-_STATUS_MARK = {"stated": "", "derived": "=", "conflict": "!"}
 _CSP = "default-src 'none'; style-src 'unsafe-inline'; img-src data:; base-uri 'none'; form-action 'none'"
 
 # ---------------------------------------------------------------- numbers
-class _Show:
-    def __init__(self, units) -> None:
-        self.units = units
-
-    def __call__(self, si: float | None, unit: str) -> str:
-        if si is None:
-            return "—"
-        try:
-            return format_quantity(self.units, si, unit)
-        except Exception:  # a display unit pint cannot read: show the SI number instead
-            return format_number(si)
-
-    def bare(self, si: float, unit: str) -> str:
-        try:
-            return format_number(si / self.units.factor(unit)) if unit != "1" else format_number(si)
-        except Exception:
-            return format_number(si)
-
-    def span(self, low, high, unit: str) -> str:
-        if low is not None and high is not None:
-            text = f"{self.bare(low, unit)} … {self.bare(high, unit)}"
-        elif low is not None:
-            text = f"≥ {self.bare(low, unit)}"
-        elif high is not None:
-            text = f"≤ {self.bare(high, unit)}"
-        else:
-            return "unbounded"
-        return text if unit == "1" else f"{text} {pretty_unit(unit)}"
-
-    def prefixed(self, si: float, unit: str) -> str:
-        try:
-            return choose_unit(self.units, si, unit)
-        except Exception:
-            return unit
-
-
-def _cell_main(cell: Cell, show: _Show) -> str:
-    unit = cell.display_unit or cell.unit
-    if cell.status in ("stated", "conflict") and cell.text:
-        return cell.text
-    if cell.value is not None:
-        return show(cell.value, unit)
-    return show.span(cell.low, cell.high, unit)
-
-
-def _cell_title(cell: Cell, show: _Show) -> str:
-    unit = cell.display_unit or cell.unit
-    parts = [cell.status + (" (default value)" if cell.assumed else "")]
-    if (cell.low is not None or cell.high is not None) and not (
-            cell.low is not None and cell.high is not None and cell.low > 0 and cell.high / cell.low <= 1 + 1e-9):
-        ref = cell.value or cell.low or cell.high
-        parts.append("interval " + show.span(cell.low, cell.high, show.prefixed(ref, unit) if ref else unit))
-    return "; ".join(parts)
-
-
-def _implied(cell: Cell, show: _Show) -> str:
-    ref = cell.implied_low if cell.implied_low is not None else cell.implied_high
-    if ref is None:
-        return ""
-    unit = show.prefixed(ref, cell.display_unit or cell.unit)
-    return "≠ implied " + show.span(cell.implied_low, cell.implied_high, unit)
+_Show = cell_text.Numbers
 
 
 # ------------------------------------------------------- beyond the sheet
@@ -218,7 +160,9 @@ def _finding(f: Finding) -> str:
     out = [f'<li class="finding {e(f.severity)}" data-rule="{e(f.rule)}">',
            f'<div class="head"><span class="badge {e(f.severity)}">{e(f.severity)}</span>'
            f'<code class="where">{e(_where(f))}</code><code class="rule">{e(f.rule)}</code></div>',
-           f'<p class="msg">{e(f.message)}</p>']
+           f'<p class="msg">{e(f.message)}</p>' if f.rule != "laser-safety" else  # said once, at the top
+           '<p class="msg">The <a href="#laser-safety">laser-safety caution</a> at the top of this report '
+           "applies to this file.</p>"]
     meta = []
     if f.suspect:
         meta.append(f"suspect: <code>{e(f.suspect)}</code>")
@@ -255,8 +199,10 @@ def _grid(result: FileResult, show: _Show, n: int) -> str:
            '<span class="c-derived"><span class="mark">=</span>derived</span>'
            '<span class="c-conflict"><span class="mark">!</span>conflict</span>'
            '<span><span class="assumed">(default)</span> a default value</span>'
-           + ('<span><span class="assumed">(--set)</span> set on the command line</span>'
-              if any(c.overridden for cells in sheet.values() for c in cells.values()) else "") + '</p>',
+           + "".join(f'<span><span class="mark">{e(mark)}</span>{e(words)}</span>' if mark != cell_text.SET_MARK
+                     else f'<span><span class="assumed">(--set)</span> {e(words)}</span>'
+                     for mark, words in cell_text.legend(c for cells in sheet.values() for c in cells.values()))
+           + '</p>',
            f'<div class="scroll" role="region" aria-labelledby="sheet-{n}" tabindex="0">'
            f'<table class="sheet" data-rows="{len(rows)}" data-columns="{len(sheet)}">'
            f'<caption id="sheet-{n}">Sheet: {len(rows)} quantities × {len(sheet)} '
@@ -272,22 +218,7 @@ def _grid(result: FileResult, show: _Show, n: int) -> str:
             if cell is None:
                 line.append('<td class="c-none"></td>')
                 continue
-            status = cell.status if cell.status in _STATUS_MARK else "derived"
-            mark = _STATUS_MARK[status]
-            text = [f'<td class="c-{status}" data-status="{status}" title="{e(_cell_title(cell, show))}">']
-            if mark:
-                text.append(f'<span class="mark" aria-hidden="true">{mark}</span>')
-            text.append(f'<span class="vh">{status}: </span>{e(_cell_main(cell, show))}')
-            if cell.assumed:
-                text.append(' <span class="assumed">(default)</span>')
-            if cell.overridden:
-                text.append(' <span class="assumed">(--set)</span>')
-            if status == "conflict":
-                implied = _implied(cell, show)
-                if implied:
-                    text.append(f'<span class="implied">{e(implied)}</span>')
-            text.append("</td>")
-            line.append("".join(text))
+            line.append(html_points.cell(cell, show))
         line.append("</tr>")
         out.append("".join(line))
     out.append("</tbody></table></div>")
@@ -378,6 +309,7 @@ def render(results: list[FileResult], units, plotter=None, why: str | None = Non
         else:
             out.append("<p>No findings.</p>")
         out.append("<h3>Sheet</h3>" + _grid(r, show, i))
+        out.append(html_points.section(r, units, show, plotter, i))
         out.append(_plots(r, units, show, plotter, i))
         out.append("</section>")
     out.append("</main>")

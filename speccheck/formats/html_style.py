@@ -11,7 +11,8 @@ h1{font-size:1.6rem;margin:0 0 .25rem}h2{font-size:1.3rem;margin:0 0 .2rem}
 h3{font-size:1.05rem;margin:1.4rem 0 .5rem;border-bottom:1px solid var(--line);padding-bottom:.2rem}
 code,.mono{font-family:ui-monospace,"SFMono-Regular",Menlo,Consolas,"DejaVu Sans Mono",monospace;font-size:.9em}
 .summary{color:var(--muted);margin:.2rem 0 1rem}
-.vh{position:absolute!important;width:1px;height:1px;overflow:hidden;clip:rect(0 0 0 0);white-space:nowrap}
+.vh{position:absolute!important;width:1px;height:1px;margin:-1px;padding:0;border:0;overflow:hidden;
+clip:rect(0 0 0 0);clip-path:inset(50%);white-space:nowrap}
 .caution{border:3px solid #b45309;background:#fffbeb;border-radius:6px;padding:.8rem 1rem;margin:0 0 1.2rem}
 .caution h2{color:#92400e;font-size:1.15rem}
 .caution p{margin:.35rem 0}
@@ -37,18 +38,22 @@ details p{margin:.35rem 0}
 details pre{background:var(--panel);border:1px solid var(--line);padding:.4rem .6rem;margin:.2rem 0;overflow-x:auto}
 .legend{font-size:.9rem;color:var(--muted);margin:.2rem 0 .5rem}
 .legend>span{display:inline-block;padding:0 .4rem;margin-right:.4rem;border:1px solid var(--line);border-radius:3px}
-.scroll{overflow-x:auto;max-width:100%;border:1px solid var(--line);border-radius:4px}
+.scroll{position:relative;overflow-x:auto;max-width:100%;border:1px solid var(--line);border-radius:4px;margin:0 0 .8rem}
+.msg,.path,.where,figcaption,.notice,.legend{overflow-wrap:anywhere}
 table.sheet{border-collapse:collapse;font-size:.84rem;font-variant-numeric:tabular-nums}
 table.sheet caption{text-align:left;padding:.3rem .5rem;color:var(--muted);caption-side:top}
 table.sheet th,table.sheet td{border-bottom:1px solid #e4e4e7;padding:.2rem .55rem;text-align:right;white-space:nowrap;vertical-align:top}
 table.sheet thead th{position:sticky;top:0;background:#f4f4f5;border-bottom:2px solid var(--line);text-align:right}
-table.sheet th[scope=row]{text-align:left;font-weight:600;background:#fff;position:sticky;left:0}
-table.sheet thead th:first-child{text-align:left;left:0;z-index:1}
+table.sheet th[scope=row]{text-align:left;font-weight:600;background:#fff;position:sticky;left:0;z-index:1;
+box-shadow:1px 0 0 var(--line)}
+table.sheet thead th:first-child{text-align:left;left:0;z-index:2}
 .c-stated{font-weight:600}
 .c-derived{color:var(--derived);background:var(--derived-bg)}
 .c-conflict{color:var(--conflict);background:var(--conflict-bg);font-weight:700;outline:2px solid var(--conflict);outline-offset:-2px}
 .mark{display:inline-block;min-width:.8em;font-weight:700;margin-right:.15rem}
 .implied{display:block;font-weight:400;font-size:.8rem}
+.c-stated.c-inherited{font-weight:400;color:var(--muted)}
+td.verdict{text-align:left;font-weight:600}td.v-error{color:var(--err)}td.v-warning{color:var(--warn)}
 .assumed{font-weight:400;font-style:italic;color:var(--muted)}
 figure{margin:.6rem 0 1rem}
 figure svg{display:block;width:100%;max-width:52rem;height:auto}

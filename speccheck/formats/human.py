@@ -8,6 +8,7 @@ from rich.console import Console
 from rich.table import Table
 from rich.text import Text
 
+from speccheck.formats import cell_text
 from speccheck.formats.common import place
 from speccheck.records.findings import Cell, FileResult, SEVERITIES
 from speccheck.reading.units import choose_unit, format_number, format_quantity, pretty_unit
@@ -71,42 +72,38 @@ def _cell_text(cell: Cell, show) -> str:
     return text
 
 
-_MARK = {"stated": " ", "derived": "=", "conflict": "!"}
-SET_MARK = "*"  # a value set on the command line (--set)
+MAX_CELL_WIDTH = 32
 
 
-def _grid(console: Console, sheet: dict, show) -> None:
+def _grid(console: Console, sheet: dict, numbers) -> None:
     """Rows are quantities, columns the laser and each stage; wide sheets are split into
-    chunks of columns that fit the console."""
+    chunks of columns that fit the console.  Each cell's text and marks are
+    ``formats.cell_text``'s, the same as the HTML grid's."""
     rows: list[str] = []
     for cells in sheet.values():
         rows += [q for q in cells if q not in rows]
     names = list(sheet)
     label_width = max(len(q) for q in rows) + 1 if rows else 10
-    cell_width = 15
-    per_chunk = max(1, (console.width - label_width - 2) // (cell_width + 2))
-    legend = "  stated   =derived   !conflict"
-    if any(c.overridden for cells in sheet.values() for c in cells.values()):
-        legend += f"   {SET_MARK}set on the command line"
+    texts = {name: {q: (cell_text.marks(c) or " ") + cell_text.shown(c, numbers) for q, c in cells.items()}
+             for name, cells in sheet.items()}
+    widths = {name: min(MAX_CELL_WIDTH, max([len(name), *map(len, texts[name].values())]) + 1) for name in names}
+    legend = "  stated   =derived   !conflict" + "".join(
+        f"   {mark}{words}" for mark, words in cell_text.legend(c for cells in sheet.values() for c in cells.values()))
     console.print(Text(legend, style="dim"))
-    for start in range(0, len(names), per_chunk):
-        chunk = names[start:start + per_chunk]
+    chunks: list[list[str]] = [[]]
+    room = console.width - label_width - 2
+    for name in names:
+        if chunks[-1] and sum(widths[n] + 2 for n in chunks[-1]) + widths[name] + 2 > room:
+            chunks.append([])
+        chunks[-1].append(name)
+    for chunk in chunks:
         table = Table(show_header=True, header_style="bold", box=None, pad_edge=False)
         table.add_column("", no_wrap=True, min_width=label_width)
         for name in chunk:
-            table.add_column(name, no_wrap=True, overflow="ellipsis", max_width=cell_width)
+            table.add_column(name, no_wrap=True, overflow="ellipsis", max_width=widths[name])
         for q in rows:
-            values = []
-            for name in chunk:
-                cell = sheet[name].get(q)
-                if cell is None:
-                    values.append(Text(""))
-                    continue
-                unit = cell.display_unit or cell.unit
-                number = show(cell.value, unit) if cell.value is not None else (
-                    "≥ " + show(cell.low, unit) if cell.low is not None else "≤ " + show(cell.high, unit))
-                mark = SET_MARK if cell.overridden else _MARK[cell.status]
-                values.append(Text(mark + number, style=_STATUS_STYLE[cell.status]))
+            values = [Text(texts[name][q], style=_STATUS_STYLE[sheet[name][q].status]) if q in texts[name]
+                      else Text("") for name in chunk]
             if any(v.plain for v in values):
                 table.add_row(q, *values)
         console.print(table)
@@ -126,7 +123,7 @@ def write(results: list[FileResult], out, options) -> None:
         for setting in result.settings:
             console.print(Text(f"  with --set {setting} (the file is unchanged)", style="bold"))
         if (options is None or options.show_sheet) and len(result.sheet) > 1:
-            _grid(console, result.sheet, show)
+            _grid(console, result.sheet, cell_text.Numbers(options.units))
         elif options is None or options.show_sheet:
             for block, cells in result.sheet.items():
                 if not cells:

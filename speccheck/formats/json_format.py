@@ -54,6 +54,8 @@ def cell_dict(c: Cell) -> dict:
         out["assumed"] = True
     if c.overridden:
         out["set"] = True
+    if c.inherited:
+        out["inherited"] = True
     return out
 
 
@@ -109,6 +111,8 @@ class _SheetWriter:
             text += ',"assumed":true'
         if c.overridden:
             text += ',"set":true'
+        if c.inherited:
+            text += ',"inherited":true'
         return text + "}"
 
     def sheet(self, sheet: dict) -> str:

@@ -24,6 +24,7 @@ import matplotlib
 import numpy as np
 from matplotlib.backends.backend_agg import FigureCanvasAgg
 from matplotlib.figure import Figure
+from matplotlib.ticker import FuncFormatter, NullFormatter
 
 from speccheck.reading.units import choose_unit, format_number, pretty_unit
 
@@ -217,6 +218,61 @@ def caustic(units, foci: list[tuple[str, float, float]]) -> str:
             if i == 0:
                 ax.set_ylabel(f"±w(z), 1/e² radius ({pretty_unit(wu)})")
         fig.suptitle("Beam radius around each focus (dashed: ±z_R)", fontsize=9.5)
+        return _svg(fig)
+
+
+def operating_points(units, points: list, limits: dict) -> str:
+    """Pulse energy and average power against repetition rate (log-log), one panel each, for
+    (name, rate in Hz, energy, power, has an error) with energy and power as (value, low, high)
+    in SI or None; bars for the intervals, and the sheet's limits dashed: a bound on the power
+    is also E = P/f on the energy panel, a bound on the energy P = E·f on the power panel, a
+    bound on the rate a vertical line on both."""
+    rates = [p[1] for p in points]
+    for side in limits.get("repetition_rate", ()):
+        if side:
+            rates.append(side)
+    f = np.geomspace(min(rates) / 2.0, max(rates) * 2.0, 200)
+    fu, ff = _unit(units, max(rates), "kHz")
+    panels = (("pulse_energy", 2, "µJ", "pulse energy"), ("average_power", 3, "W", "average power"))
+    with matplotlib.rc_context(_RC):
+        fig, axes = _figure(6.4, 3.0, 2)
+        for ax, (q, k, preferred, name) in zip(axes, panels):
+            values = [p[k][0] for p in points if p[k] is not None] or [1.0]
+            yu, yf = _unit(units, max(values), preferred)
+            for i, p in enumerate(points):
+                if p[k] is None:
+                    continue
+                value, low, high = p[k]
+                lo = value - (low if low is not None else value)
+                hi = (high - value) if high is not None else 0.0
+                ax.errorbar([p[1] / ff], [value / yf], yerr=[[lo / yf], [hi / yf]], fmt="x" if p[4] else "o",
+                            color="#b91c1c" if p[4] else _COLOURS[0], markersize=6, capsize=3, linewidth=1.2)
+                tag = label(p[0])
+                note = ax.annotate(tag if len(tag) <= 16 else tag[:15] + "…", (p[1] / ff, value / yf),
+                                   textcoords="offset points", xytext=(5, 4), fontsize=7, clip_on=True)
+                note.set_in_layout(False)  # a long name never squeezes the axes
+            other = "average_power" if q == "pulse_energy" else "pulse_energy"
+            for side in limits.get(q, ()):
+                if side:
+                    ax.axhline(side / yf, color="#52525b", linestyle="--", linewidth=0.9)
+            for side in limits.get(other, ()):
+                if side:  # E = P/f, or P = E·f
+                    curve = side / f if q == "pulse_energy" else side * f
+                    ax.plot(f / ff, curve / yf, color="#a16207", linestyle="--", linewidth=0.9)
+            for side in limits.get("repetition_rate", ()):
+                if side:
+                    ax.axvline(side / ff, color="#52525b", linestyle=":", linewidth=0.9)
+            ax.set_xscale("log")
+            ax.set_yscale("log")
+            for axis in (ax.xaxis, ax.yaxis):
+                axis.set_major_formatter(FuncFormatter(lambda v, _: format_number(v, 3)))
+                axis.set_minor_formatter(NullFormatter())
+            ax.set_xlim(f[0] / ff, f[-1] / ff)
+            top = max(v for v in values) / yf
+            ax.set_ylim(min(v for v in values) / yf / 3.0, top * 3.0)
+            ax.set_xlabel(f"repetition rate ({pretty_unit(fu)})")
+            ax.set_ylabel(f"{name} ({pretty_unit(yu)})")
+        fig.suptitle("Operating points against the sheet's limits (dashed)", fontsize=9.5)
         return _svg(fig)
 
 

@@ -1,16 +1,20 @@
 """``--review``: a short report for someone reviewing a maker's sheet or a proposal.
 
-Per file: which claims are consistent, which are impossible or contradictory,
-and which headline numbers the sheet implies without stating them.
+Per file, on about one page: the consistent claims of the laser block; where the
+spec has operating points or a path, a table with a row per operating point (and
+the laser, and the end of each branch) giving rate, energy, power, duration and
+peak power with its verdict (``formats/points.py``); the impossible or
+contradictory claims; then each headline number the spec implies without
+stating it, once (one line per quantity, its value at each column).
 """
 
 from __future__ import annotations
 
 from rich.text import Text
 
+from speccheck.formats import cell_text, points
 from speccheck.formats.human import QuietConsole
 from speccheck.records.findings import FileResult, SEVERITIES
-from speccheck.physics.quantities import BY_NAME
 from speccheck.reading.units import choose_unit, format_quantity
 
 _STYLE = {"error": "bold red", "warning": "yellow", "note": "cyan"}
@@ -18,6 +22,7 @@ _STYLE = {"error": "bold red", "warning": "yellow", "note": "cyan"}
 HEADLINE = ("pulse_energy", "average_power", "repetition_rate", "pulse_duration", "peak_power",
             "spectral_bandwidth", "spectral_bandwidth_wavelength", "time_bandwidth_product",
             "beam_diameter", "peak_intensity", "average_intensity", "peak_fluence", "peak_field")
+MAX_NAME = 18  # a column's name in the table, shortened beyond this
 
 
 def _phrase(quantity: str) -> str:
@@ -28,11 +33,45 @@ def _at(f) -> str:
     return f"({f.origin})" if f.origin else f"line {f.line}"
 
 
+def _where(column: str, kind: str, columns: list) -> str:
+    if kind == "laser":
+        return " at the laser" if len(columns) > 1 else ""
+    if kind == "point" or sum(k == "end" for _, k in columns) > 1:
+        return f" at {column!r}"  # the table's rows say which is a point and which a branch end
+    return f" at the end of the path ({column!r})"
+
+
+def _implied(units, c) -> str:
+    ref = c.value if c.value is not None else (c.low or c.high)
+    unit = choose_unit(units, ref, c.display_unit)
+    if c.low is not None and c.high is not None:
+        return format_quantity(units, c.value, unit)
+    if c.low is not None:
+        return "at least " + format_quantity(units, c.low, unit)
+    return "at most " + format_quantity(units, c.high, unit)
+
+
+def _table(console, result: FileResult, numbers) -> None:
+    rows = points.rows(result)
+    body = [[r.label if len(r.label) <= MAX_NAME else r.label[:MAX_NAME - 1] + "…", *points.texts(r, numbers),
+             r.verdict] for r in rows]
+    head = ["", *points.HEADERS, "verdict"]
+    widths = [max(len(line[k]) for line in [head, *body]) for k in range(len(head))]
+    for k, line in enumerate([head, *body]):
+        text = "  ".join(t.ljust(w) for t, w in zip(line, widths)).rstrip()
+        style = "bold" if k == 0 else _STYLE.get(rows[k - 1].severity or "", "")
+        console.print(Text("    " + text, style=style), no_wrap=True, overflow="ignore", crop=False)
+    marks = [("=", "implied"), ("!", "in conflict")]  # then the marks in use
+    marks += cell_text.legend(c for r in rows for c in r.cells if c is not None)
+    console.print(Text("    " + "   ".join(f"{m} {w}" for m, w in marks), style="dim"))
+
+
 def write(results: list[FileResult], out, options) -> None:
     color = bool(options and options.color)
     console = QuietConsole(file=out, color_system="auto" if color else None, force_terminal=color,
                       no_color=not color, highlight=False, emoji=False, width=None if color else 100)
     units = options.units
+    numbers = cell_text.Numbers(units)
     for result in results:
         console.print(Text(f"{result.title or result.path}", style="bold")
                       + Text(f"  ({result.path})" if result.title else ""))
@@ -43,40 +82,43 @@ def write(results: list[FileResult], out, options) -> None:
                    for q in ((f.suspect,) if f.suspect else f.candidates) if q} | {
             q for f in result.findings if f.severity == "error" and f.rule != "relation-conflict"
             for q in f.quantities}
-        for column, cells in result.sheet.items():
-            if column == "laser":
-                where = ""
-            elif column in result.operating_points:
-                where = f" at operating point {column!r}"
-            elif column in result.branch_ends:
-                where = f" at the end of the path ({column!r})"
-            else:
-                continue  # a stage inside the path: the full sheet is in the other formats
-            good = [f"{q} {c.text}" for q, c in cells.items()
-                    if c.status == "stated" and f"{column}.{q}" not in flagged]
+        table = points.has_table(result)
+        columns = points.columns(result)
+        for column, kind in columns:
+            if kind == "end":
+                continue  # the path's end is derived: its numbers are in the table
+            good = [f"{q} {c.text}" for q, c in result.sheet[column].items()
+                    if c.status == "stated" and f"{column}.{q}" not in flagged and not c.inherited
+                    and not (table and kind == "point" and q in points.QUANTITIES)]
             if good:
+                where = "" if kind == "laser" else f" at operating point {column!r}"
                 console.print(Text(f"  Consistent{where}: ", style="green") + Text(", ".join(good)))
-            implied = []
-            for q, c in cells.items():
-                if c.status != "derived" or q not in HEADLINE:
-                    continue
-                ref = c.value if c.value is not None else (c.low or c.high)
-                unit = choose_unit(units, ref, c.display_unit or BY_NAME[q].display_unit)
-                if c.low is not None and c.high is not None:
-                    text = format_quantity(units, c.value, unit)
-                elif c.low is not None:
-                    text = "at least " + format_quantity(units, c.low, unit)
-                else:
-                    text = "at most " + format_quantity(units, c.high, unit)
-                implied.append(f"the {_phrase(q)} this spec implies{where} is {text}")
-            for line in implied:
-                console.print(Text("  Implied: ", style="bold") + Text(line))
+        if table:
+            _table(console, result, numbers)
         errors = [f for f in result.findings if f.severity == "error"]
         if errors:
             console.print(Text("  Impossible or contradictory:", style=_STYLE["error"]))
             for f in errors:
                 console.print(Text(f"    {_at(f)}: " if f.line or f.origin else "    ") + Text(f.message))
-        others = [f for f in result.findings if f.severity != "error"]
+        implied = []
+        for q in HEADLINE:
+            if table and q in points.QUANTITIES:
+                continue  # in the table
+            values = [(column, kind, result.sheet[column][q]) for column, kind in columns
+                      if q in result.sheet[column] and result.sheet[column][q].status == "derived"]
+            values = [(column, kind, c) for column, kind, c in values if c.value is not None or c.low or c.high]
+            if values:
+                implied.append(f"{_phrase(q)} " + ", ".join(_implied(units, c) + _where(column, kind, columns)
+                                                           for column, kind, c in values))
+        if implied and len(columns) > 1:
+            for line in implied:
+                console.print(Text("  Implied: ", style="bold") + Text(line))
+        elif implied:
+            console.print(Text("  Implied: ", style="bold") + Text("; ".join(implied)))
+        # a target met at an operating point is said in the table's verdict, not again below it
+        shown = points.has_table(result)
+        others = [f for f in result.findings if f.severity != "error"
+                  and not (shown and f.rule == "target-met" and f.message.startswith("at operating point"))]
         for f in others:
             console.print(Text(f"  {f.severity.capitalize()}: ", style=_STYLE[f.severity])
                           + Text(f"{_at(f)}: {f.message}" if f.line or f.origin else f.message))

@@ -76,6 +76,7 @@ class Cell(NamedTuple):
     assumed: bool = False  # a default value, not stated by the user
     text: str = ""  # the value as the user wrote it (stated and conflict cells)
     overridden: bool = False  # set on the command line (``--set``), not read from the file
+    inherited: bool = False  # an operating point's value taken from the laser block, not restated there
 
 
 @dataclass(frozen=True)

@@ -2,7 +2,7 @@
 
 Exit codes: 0 no finding at the failing level; 1 at least one (errors by
 default; ``--strict`` or ``fail-on`` in the project configuration make
-warnings or notes count too); 2 usage or I/O failure (a missing file, a glob
+warnings or notes count too; the laser-safety caution never counts); 2 usage or I/O failure (a missing file, a glob
 that matches nothing, a mistake in the configuration).  Input files are only
 ever opened for reading.
 """

@@ -10,6 +10,7 @@ figure is the best of ``--repeat`` runs, with the median beside it.
 1. Throughput over 1,000 generated specs (1b: each with a glass, a compressor and a focus,
    the field's case; with ``--jobs 2`` beside it):
    (a) ``python -m speccheck check --format json FOLDER``
+   (h) ``python -m speccheck check FOLDER``: the default human output, not to a terminal (1 only)
    (b) a reference that does strictly less: read the same files, parse each
        with PyYAML's C loader and validate it against the JSON Schema
        (one Draft202012Validator), nothing else.
@@ -227,10 +228,13 @@ def main(argv: list[str] | None = None) -> int:
         print(f"  reference: {ref_out.strip()}")
         runner.once(check_args(str(folder)), ok=CHECK_OK)  # warm caches (bytecode, pint's registry cache)
         a = runner.time(check_args(str(folder)), ok=CHECK_OK)
+        h = runner.time(check_args(str(folder), fmt=None), ok=CHECK_OK)
         b = runner.time([str(reference), args.schema, str(folder)])
         row("(a) speccheck check --format json", a, f"   {a[0] / 1000 * 1e3:.2f} ms/file")
+        row("(h) speccheck check (human, not a terminal)", h, f"   {h[0] / 1000 * 1e3:.2f} ms/file")
         row("(b) reference: read + C YAML + jsonschema", b, f"   {b[0] / 1000 * 1e3:.2f} ms/file")
-        print(f"  ratio a/b: {a[0] / b[0]:.2f}x (best)   {a[1] / b[1]:.2f}x (median)")
+        print(f"  ratio a/b: {a[0] / b[0]:.2f}x (best)   {a[1] / b[1]:.2f}x (median);   "
+              f"h/b: {h[0] / b[0]:.2f}x (best)   {h[1] / b[1]:.2f}x (median)")
         print()
 
         # ------------------------------------------- 1b. every spec with a pulse path

@@ -2,7 +2,7 @@
 
 Exit codes: 0 no finding at the failing level; 1 at least one (errors by
 default; ``--strict`` or ``fail-on`` in the project configuration make
-warnings or notes count too); 2 usage or I/O failure (a missing file, a glob
+warnings or notes count too; the laser-safety caution never counts); 2 usage or I/O failure (a missing file, a glob
 that matches nothing, a mistake in the configuration).  Input files are only
 ever opened for reading.
 """
@@ -50,7 +50,11 @@ def _parser() -> argparse.ArgumentParser:
     where.add_argument("--no-config", action="store_true", help="ignore any project configuration")
     c.add_argument("--no-color", action="store_true", help="never colour the output (also: NO_COLOR=1)")
     c.add_argument("--color", action="store_true", help="colour the output even when it is not a terminal")
-    c.add_argument("--no-sheet", action="store_true", help="human format: findings only, no sheet")
+    sheet = c.add_mutually_exclusive_group()
+    sheet.add_argument("--sheet", action="store_true",
+                       help="human format: the sheet of every file, also when several are checked")
+    sheet.add_argument("--no-sheet", action="store_true",
+                       help="human format: findings only, no sheet (default when several files are checked)")
     what_if.set_option(c)
     c.add_argument("--jobs", "-j", type=_positive_int, default=1, metavar="N",
                    help="check the files in N processes (the report is the same; gains only with more cores)")
@@ -180,7 +184,11 @@ def _check(args, stdout, stderr, stdin=None) -> int:
     fail_on = _fail_level(args, config)
     to_terminal = args.output is None and hasattr(stdout, "isatty") and stdout.isatty()
     color = (args.color or to_terminal) and not args.no_color and not os.environ.get("NO_COLOR")
-    options = OutputOptions(units=units, color=color, show_sheet=not args.no_sheet, fail_on=fail_on)
+    import shutil
+
+    options = OutputOptions(units=units, color=color, fail_on=fail_on,
+                            show_sheet=True if args.sheet else False if args.no_sheet else None,
+                            width=shutil.get_terminal_size().columns if to_terminal and color else None)
     chosen = "review" if args.review else args.format
     write = writer(chosen)
     code = 2 if io_failure else 1 if cfg.failing(results, fail_on) else 0

@@ -3,6 +3,7 @@
 import io
 import json
 import os
+import re
 import subprocess
 import sys
 from pathlib import Path
@@ -37,7 +38,7 @@ def test_an_error_exits_1_and_prints_file_line_col(tmp_path):
 def test_a_missing_file_exits_2_and_the_others_are_still_checked(tmp_path):
     code, out, err = cli("check", str(tmp_path / "nope.yaml"), str(EXAMPLES / "oscillator-consistent.yaml"))
     assert code == 2
-    assert "cannot read" in err and "Ti:sapphire oscillator" in out
+    assert "cannot read" in err and str(EXAMPLES / "oscillator-consistent.yaml") in out and "in 2 files" in out
 
 
 def test_usage_errors_exit_2():
@@ -216,3 +217,68 @@ def test_jobs_gives_the_same_report_as_one_process(tmp_path):
         outs.append((code, out.getvalue()))
     assert outs[0] == outs[1]
     assert outs[0][1].count('"path"') >= 6
+
+
+# ------------------------------------------------------------------ how the human output reads
+def sheet_rows(out: str) -> list[str]:
+    return [line for line in out.splitlines() if line.startswith(("wavelength ", "pulse_energy "))]
+
+
+def test_the_sheet_is_shown_by_default_only_when_one_file_is_checked():
+    one, two = str(EXAMPLES / "maker-sheet-one-wrong.yaml"), str(EXAMPLES / "oscillator-consistent.yaml")
+    assert sheet_rows(cli("check", one)[1])
+    assert not sheet_rows(cli("check", "--no-sheet", one)[1])
+    out = cli("check", one, two)[1]
+    assert not sheet_rows(out) and f"{one}:10:17: error [relation-conflict]" in out
+    assert out.rstrip().endswith("1 error, 0 warnings, 0 notes, 1 caution in 2 files")
+
+
+def test_sheet_shows_every_files_sheet_after_all_the_findings():
+    one, two = str(EXAMPLES / "maker-sheet-one-wrong.yaml"), str(EXAMPLES / "oscillator-consistent.yaml")
+    lines = cli("check", "--sheet", one, two)[1].splitlines()
+    rows = [i for i, line in enumerate(lines) if line.startswith("wavelength ")]
+    assert len(rows) == 2  # a sheet for each file
+    finding = max(i for i, line in enumerate(lines) if line.startswith(f"{one}:"))
+    assert finding < rows[0]
+    assert lines[rows[1] - 2].startswith(two)  # each sheet under its file's name
+
+
+def test_sheet_and_no_sheet_exclude_each_other(capsys):
+    code, _, _ = cli("check", "--sheet", "--no-sheet", str(EXAMPLES / "oscillator-consistent.yaml"))
+    assert code == 2 and "not allowed with argument" in capsys.readouterr().err  # argparse's own message
+
+
+class Terminal(io.StringIO):
+    def isatty(self):
+        return True
+
+
+def test_on_a_terminal_findings_wrap_at_its_width_and_in_a_pipe_they_do_not(monkeypatch):
+    import shutil
+
+    monkeypatch.delenv("NO_COLOR", raising=False)
+    monkeypatch.setattr(shutil, "get_terminal_size", lambda *a, **k: os.terminal_size((72, 24)))
+    path = str(EXAMPLES / "maker-sheet-one-wrong.yaml")
+    out = Terminal()
+    assert run(["check", "--no-sheet", path], stdout=out, stderr=io.StringIO()) == 1
+    lines = re.sub(r"\x1b\[[0-9;]*m", "", out.getvalue()).splitlines()
+    assert "\x1b[" in out.getvalue() and max(map(len, lines)) <= 72 and len(lines) > 12
+    piped = cli("check", "--no-sheet", path)[1].splitlines()
+    (finding,) = [line for line in piped if line.startswith(f"{path}:10:17:")]
+    assert finding.endswith("kHz for MHz).")  # the whole finding on its line
+    out = Terminal()
+    run(["check", "--no-sheet", "--no-color", path], stdout=out, stderr=io.StringIO())
+    assert out.getvalue().splitlines() == piped  # no colour: the plain writer, even on a terminal
+
+
+def test_plain_human_output_does_not_import_rich():
+    one, two = str(EXAMPLES / "maker-sheet-one-wrong.yaml"), str(EXAMPLES / "maker-sheet-operating-points.yaml")
+    probe = ("import io, sys\nfrom speccheck.cli import run\n"
+             f"for argv in (['check', {one!r}], ['check', {two!r}], ['check', {one!r}, {two!r}], "
+             f"['check', '--color', {one!r}]):\n"
+             "    out = io.StringIO()\n"
+             "    run(argv, out, io.StringIO())\n"
+             "    print('rich' in sys.modules, 'pulse_energy' in out.getvalue())\n")
+    proc = subprocess.run([sys.executable, "-c", probe], capture_output=True, text=True, timeout=300,
+                          env=dict(os.environ, PYTHONPATH=str(ROOT)))
+    assert proc.stdout.split() == ["False", "True"] * 3 + ["True", "True"], proc.stderr

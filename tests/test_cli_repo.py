@@ -316,11 +316,23 @@ def test_the_pre_commit_hook_runs_speccheck_check_on_yaml_files():
 
     (hook,) = yaml.safe_load((ROOT / ".pre-commit-hooks.yaml").read_text())
     assert hook["id"] == "speccheck" and hook["entry"] == "speccheck check" and hook["language"] == "python"
-    files = re.compile(hook["files"])
-    assert files.search("specs/a.yaml") and files.search("b.yml") and not files.search("notes.txt")
+    assert hook["types"] == ["yaml"] and "files" not in hook  # pre-commit's own type: *.yaml and *.yml
+    assert hook["args"] == ["--no-sheet"] and hook["require_serial"] is True
     hidden = re.compile(hook["exclude"])
     assert hidden.search(".pre-commit-config.yaml") and hidden.search(".github/workflows/ci.yml")
     assert not hidden.search("specs/a.yaml")
+
+
+def test_the_pre_commit_hooks_run_gives_findings_one_summary_and_the_caution_once(monkeypatch):
+    monkeypatch.chdir(ROOT)  # pre-commit runs from the repository's root with relative paths
+    (hook,) = yaml.safe_load((ROOT / ".pre-commit-hooks.yaml").read_text())
+    names = ["maker-sheet-one-wrong.yaml", "oscillator-consistent.yaml", "maker-sheet-operating-points.yaml"]
+    argv = hook["entry"].split()[1:] + hook["args"] + [f"example_specs/{n}" for n in names]
+    code, out, _ = cli(*argv)  # one serial run over every file pre-commit passes
+    assert code == 1
+    assert out.count("IEC 60825-1") == 1 and out.count(" in 3 files") == 1
+    assert not [line for line in out.splitlines() if line.startswith(("wavelength ", "pulse_energy "))]
+    assert "example_specs/maker-sheet-one-wrong.yaml:10:17: error [relation-conflict]" in out
 
 
 def test_readme_shows_the_ci_step_and_the_pre_commit_snippet():

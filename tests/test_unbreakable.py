@@ -724,8 +724,8 @@ def test_a_broken_pipe_exits_zero(here, files):
     guard = here / ".guard.py"
     guard.write_text(_GUARD, encoding="utf-8")
     env = {**os.environ, "SPECCHECK_CACHE_DIR": str(here / ".cache")}
-    proc = subprocess.Popen([sys.executable, str(guard), "check", "--no-config", *names], cwd=here, env=env,
-                            stdout=subprocess.PIPE, stderr=subprocess.PIPE)
+    proc = subprocess.Popen([sys.executable, str(guard), "check", "--no-config", "--sheet", *names], cwd=here,
+                            env=env, stdout=subprocess.PIPE, stderr=subprocess.PIPE)  # the sheets: output enough
     try:
         first = proc.stdout.readline()  # `| head -1`
         proc.stdout.close()
@@ -734,7 +734,7 @@ def test_a_broken_pipe_exits_zero(here, files):
     except subprocess.TimeoutExpired:
         proc.kill()
         pytest.fail("speccheck did not end after its reader went away", pytrace=False)
-    assert first.startswith(b"clean.yaml")
+    assert first.startswith(b"caution [laser-safety]") and first.rstrip().endswith(names[-1].encode() + b".")
     assert "Traceback" not in err, err
     assert code == 0, (code, err)
 
@@ -1078,8 +1078,28 @@ def _control_case(folder: Path, where: str) -> str:
 @pytest.mark.parametrize("where", ["title", "key", "stage name", "raw in the file", "file name"])
 def test_control_characters_never_reach_human_or_html_output_raw(here, where, fmt):
     name = _control_case(here, where)
-    run = run_cli("check", "--no-config", "--no-color", "--format", fmt, name, "clean.yaml")
+    run = run_cli("check", "--no-config", "--no-color", "--sheet", "--format", fmt, name, "clean.yaml")
     assert run.code in (0, 1, 2)
     raw = {repr(c): (run.out + run.err).count(c) for c in _RAW_CONTROLS if c in run.out + run.err}
     assert not raw, f"raw control characters in the {fmt} output: {raw}"
     assert "clean.yaml" in run.out
+
+
+_WIDE = spec('title: "波長 800 nm の発振器 e\u0301"\nlaser:\n  wavelength: 800 nm\n  pulse_duration: 100 fs\n'
+             'path:\n  - {name: "レンズ系統の長い名前です", kind: optic, transmission: 90%}\n'
+             '  - {name: "e\u0301tage", kind: optic, transmission: 2}\n')
+
+
+@pytest.mark.parametrize("where", ["title", "key", "stage name", "raw in the file", "file name", "wide"])
+def test_human_output_in_colour_has_the_characters_of_the_plain_output(here, where):
+    if where == "wide":
+        (here / "bad.yaml").write_text(_WIDE, encoding="utf-8")
+        name = "bad.yaml"
+    else:
+        name = _control_case(here, where)
+    for extra in ((), ("--sheet",)):
+        plain = run_cli("check", "--no-config", *extra, name, "clean.yaml")
+        coloured = run_cli("check", "--no-config", "--color", *extra, name, "clean.yaml")
+        assert plain.code == coloured.code
+        assert re.sub("\x1b\\[[0-9;]*m", "", coloured.out) == plain.out
+        assert all(f"{name}:" not in line or line.startswith(name) for line in plain.out.splitlines())

@@ -1,7 +1,8 @@
 """Output formats, one module each, at the edge of the program.
 
 Each format module has ``write(results, out, options) -> None``.  They are
-imported only when chosen, so the JSON path never imports rich.
+imported only when chosen; rich only for coloured output (``terminal.py``), so
+neither the JSON path nor plain human output imports it.
 """
 
 from __future__ import annotations
@@ -77,8 +78,8 @@ def _inert_result(r):
 class OutputOptions:
     units: object = None  # the process's UnitSystem, to show SI numbers in people's units
     color: bool = False
-    show_sheet: bool = True
-    width: int | None = None
+    show_sheet: bool | None = None  # the human format's sheet; None: only when one file is checked
+    width: int | None = None  # the terminal's width, where findings wrap (None: no wrapping)
     fail_on: str = "error"  # the lowest severity that fails the run (junit marks those as failures)
 
 

@@ -1,8 +1,11 @@
-"""What several formats say alike: where a finding is, and a remedy as JSON."""
+"""What several formats say alike: where a finding is, a remedy as JSON, the run's cautions."""
 
 from __future__ import annotations
 
 import math
+
+from speccheck.checking.safety import CAUTION
+from speccheck.records.findings import CAUTIONS
 
 
 def place(f) -> str:
@@ -22,3 +25,25 @@ def remedy_dict(x) -> dict:
 
 def _si(x):
     return None if x is None or not math.isfinite(x) else float("%.15g" % x)
+
+
+CAUTION_TEXT = CAUTION + "."  # the caution every hazardous spec carries, said once per run where a format can
+
+
+def caution_part(f) -> str:
+    """What a caution finding says beyond the shared caution (the indicative optical density an MPE
+    gives), or '' where it says only the caution."""
+    if not f.message.startswith(CAUTION):
+        return f.message
+    rest = f.message[len(CAUTION):]
+    return rest.lstrip(". ") if rest.strip(". ") else ""
+
+
+def cautioned(results) -> list:
+    """The run's caution findings, one ``(path, finding)`` per file that has one, in the files' order."""
+    out = []
+    for r in results:
+        found = next((f for f in r.findings if f.rule in CAUTIONS), None)
+        if found is not None:
+            out.append((r.path, found))
+    return out

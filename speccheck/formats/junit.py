@@ -6,7 +6,9 @@ name is the path).  Each rule with findings in the file is one
 its findings are at the failing level (``fail-on``: errors by default,
 warnings too with ``--strict``) and passes otherwise, its findings listed in
 ``<system-out>``.  A file without findings has one passing testcase,
-``no-findings``.  Characters XML 1.0 cannot carry are replaced by U+FFFD.
+``no-findings``.  The laser-safety caution is not a test: it is a
+``<property name="laser-safety" value=…>`` in the ``<properties>`` of each
+file's suite it applies to.  Characters XML 1.0 cannot carry are replaced by U+FFFD.
 """
 
 from __future__ import annotations
@@ -15,7 +17,7 @@ import re
 import xml.etree.ElementTree as ET
 
 from speccheck.formats.common import place
-from speccheck.records.findings import SEVERITIES, FileResult, Finding
+from speccheck.records.findings import CAUTIONS, SEVERITIES, FileResult, Finding
 
 _NOT_XML = re.compile("[\x00-\x08\x0b\x0c\x0e-\x1f\ud800-\udfff\ufffe\uffff]")
 CLEAN_CASE = "no-findings"
@@ -37,6 +39,12 @@ def document(results: list[FileResult], fail_on: str = "error") -> ET.Element:
         suite = ET.SubElement(root, "testsuite", name=_text(result.path))
         by_rule: dict[str, list[Finding]] = {}
         for f in result.findings:
+            if f.rule in CAUTIONS:  # a caution is a property of the file's suite, never a test
+                properties = suite.find("properties")
+                if properties is None:
+                    properties = ET.SubElement(suite, "properties")
+                ET.SubElement(properties, "property", name=f.rule, value=_text(f.message))
+                continue
             by_rule.setdefault(f.rule, []).append(f)
         failures = 0
         for rule_id, findings in by_rule.items():

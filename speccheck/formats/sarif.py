@@ -1,8 +1,9 @@
 """``--format sarif``: a SARIF 2.1.0 log (OASIS Static Analysis Results Interchange Format).
 
-One run, whose ``tool.driver`` carries the whole rule catalogue (``rules.py``)
-and whose results are the findings: level error / warning / note, the
-message, and the file as given on the command line as a relative URI
+One run, whose ``tool.driver`` (the project's ``informationUri``) carries the
+whole rule catalogue (``rules.py``; each rule's ``name`` is its id in
+PascalCase, the SARIF convention, beside its ``shortDescription``) and whose
+results are the findings: level error / warning / note, the message, and the file as given on the command line as a relative URI
 reference with the line and column of the finding (columns count Unicode
 code points, as the YAML loader does).  The quantities, suspect, candidates
 and likely cause of a finding go into the result's property bag.  Output is
@@ -15,7 +16,7 @@ import json
 from pathlib import PurePath
 from urllib.parse import quote
 
-from speccheck._version import __version__
+from speccheck._version import PROJECT_URL, __version__
 from speccheck.formats.common import remedy_dict
 from speccheck.records.findings import FileResult, Finding
 from speccheck.records.rules import RULES
@@ -41,9 +42,15 @@ def _help(rule) -> str:
     return text
 
 
+def rule_name(rule_id: str) -> str:
+    """A rule's SARIF ``name``: its id in PascalCase (``target-not-met`` → ``TargetNotMet``)."""
+    return "".join(part[:1].upper() + part[1:] for part in rule_id.split("-"))
+
+
 def _descriptor(rule) -> dict:
     return {
         "id": rule.id,
+        "name": rule_name(rule.id),
         "shortDescription": {"text": rule.summary},
         "fullDescription": {"text": rule.explanation},
         "help": {"text": _help(rule)},
@@ -92,6 +99,7 @@ def document(results: list[FileResult]) -> dict:
         "runs": [{
             "tool": {"driver": {
                 "name": "speccheck",
+                "informationUri": PROJECT_URL,
                 "version": __version__,
                 "semanticVersion": __version__,
                 "rules": [_descriptor(r) for r in RULES.values()],

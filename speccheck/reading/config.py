@@ -37,7 +37,7 @@ from typing import Iterable, Mapping
 
 from speccheck.reading.disk import read_regular
 from speccheck.reading.patterns import compile_pattern, pattern_problem
-from speccheck.records.findings import SEVERITIES, FileResult
+from speccheck.records.findings import CAUTIONS, SEVERITIES, FileResult
 from speccheck.records.rules import RULES
 
 CONFIG_FILE = "speccheck.toml"
@@ -51,7 +51,7 @@ MAX_CONFIG_BYTES = 1024 * 1024  # a configuration file larger than this is refus
 FIXED_RULES = frozenset({"yaml-syntax", "unreadable-file", "input-limit", "unsupported-yaml-tag",
                          "internal-error"})
 # The laser-safety caution is always shown: it may not be disabled, lowered or suppressed.
-ALWAYS_SHOWN = frozenset({"laser-safety"})
+ALWAYS_SHOWN = CAUTIONS
 
 
 class ConfigError(Exception):
@@ -294,9 +294,10 @@ def apply(results: Iterable[FileResult], config: Config) -> list[FileResult]:
 
 
 def failing(results: Iterable[FileResult], fail_on: str) -> bool:
-    """Whether any finding is at ``fail_on`` level or more severe."""
+    """Whether any finding is at ``fail_on`` level or more severe; a caution never fails a run."""
     worst = SEVERITIES.index(fail_on)
-    return any(SEVERITIES.index(f.severity) <= worst for r in results for f in r.findings)
+    return any(SEVERITIES.index(f.severity) <= worst and f.rule not in CAUTIONS
+               for r in results for f in r.findings)
 
 
 def _relative(path: str, root: str) -> str | None:

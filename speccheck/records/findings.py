@@ -7,6 +7,10 @@ from typing import NamedTuple
 
 SEVERITIES = ("error", "warning", "note")
 SEVERITY_RANK = {s: i for i, s in enumerate(SEVERITIES)}
+# Rules whose findings are cautions (the laser-safety one): shown for every spec they concern
+# whatever the configuration says, said once per run where a format allows, and never what
+# makes a run fail (``--fail-on note`` leaves them out).
+CAUTIONS = frozenset({"laser-safety"})
 
 
 @dataclass(frozen=True)

@@ -86,9 +86,13 @@ class Checker:
             report.add(p.rule, p.message, line=p.line, column=p.column)
         sheet: dict[str, dict[str, Cell]] = {}
         data = doc.data
+        bare: list = []  # numbers without their unit: the value grammar says so where it reads them
         if not doc.problems or data is not None:
             for rule_id, at, message, at_key in validate(data):
-                report.add(rule_id, message, at, key=at_key)
+                if rule_id == "missing-unit":
+                    bare.append((at, message))
+                else:
+                    report.add(rule_id, message, at, key=at_key)
         title = None
         shape, shape_stated, ends, fields = None, False, (), ()
         if isinstance(data, dict):
@@ -116,6 +120,10 @@ class Checker:
                                                           self.options.remedies == "all")
             if sheet:
                 self._safety(data, sheet, report)
+        said = {(f.line, f.column) for f in report.findings}
+        for at, message in bare:  # …and the schema where nothing else read it (a stage after the path ended)
+            if doc.where(tuple(at)) not in said:
+                report.add("missing-unit", message, at)
         findings = tuple(sorted(report.findings, key=Finding.sort_key))
         points = tuple(name for name in sheet if name in report.points)
         return FileResult(path, findings, sheet, title, shape, shape_stated, tuple(ends), points, tuple(fields),

@@ -69,7 +69,7 @@ def test_the_json_of_the_installed_command_is_the_same(specs):
 def test_findings_and_sheet_cells_carry_their_fields(specs):
     result = speccheck.check("maker-sheet-one-wrong.yaml", config=False)
     (conflict,) = [f for f in result.files[0].findings if f.rule == "relation-conflict"]
-    assert (conflict.severity, conflict.line, conflict.column, conflict.suspect) == ("error", 10, 17,
+    assert (conflict.severity, conflict.line, conflict.column, conflict.suspect) == ("error", 11, 17,
                                                                                       "laser.pulse_energy")
     assert "laser.pulse_energy" in conflict.quantities and "20 nJ" in conflict.message
     cell = result.files[0].sheet["laser"]["pulse_energy"]

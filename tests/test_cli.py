@@ -31,7 +31,7 @@ def test_an_error_exits_1_and_prints_file_line_col(tmp_path):
     path = EXAMPLES / "maker-sheet-one-wrong.yaml"
     code, out, _ = cli("check", "--no-sheet", str(path))
     assert code == 1
-    assert f"{path}:10:17: error [relation-conflict]" in out.replace("\n", " ")
+    assert f"{path}:11:17: error [relation-conflict]" in out.replace("\n", " ")
 
 
 def test_a_missing_file_exits_2_and_the_others_are_still_checked(tmp_path):
@@ -61,7 +61,7 @@ def test_json_has_the_contract_shape():
     (file,) = doc["files"]
     (finding,) = [f for f in file["findings"] if f["rule"] != "laser-safety"]
     assert {"rule", "severity", "message", "line", "column", "quantities", "suspect"} <= set(finding)
-    assert finding["suspect"] == "laser.pulse_energy" and finding["line"] == 10
+    assert finding["suspect"] == "laser.pulse_energy" and finding["line"] == 11
     energy = file["sheet"]["laser"]["pulse_energy"]
     assert energy["status"] == "conflict" and energy["unit"] == "J"
     assert energy["value"] == pytest.approx(20e-9)
@@ -134,7 +134,7 @@ def test_review_says_what_is_consistent_impossible_and_implied():
     assert code == 1
     assert "Consistent: wavelength 1030 nm, repetition_rate 1 MHz" in text  # all but the suspect
     assert "pulse_energy 20 nJ," not in text.split("Impossible")[0]
-    assert "Impossible or contradictory: line 10:" in text
+    assert "Impossible or contradictory: line 11:" in text
     code, out, _ = cli("check", "--review", str(EXAMPLES / "oscillator-consistent.yaml"))
     text = " ".join(out.split())
     # By hand: 2 × 530 kW / (π (0.1 cm)²) = 3.37e7 W/cm².

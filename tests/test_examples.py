@@ -65,3 +65,12 @@ def test_the_hhg_example_reports_its_cutoff(reading_checker):
     result = reading_checker.check_text((ROOT / "hhg-argon.yaml").read_bytes(), "hhg-argon.yaml")
     (finding,) = [f for f in result.findings if f.rule == "strong-field-figures"]
     assert "cutoff" in finding.message and "argon" in finding.message
+
+
+def test_every_example_starts_with_the_schema_modeline_and_it_points_at_the_schema():
+    for spec in sorted(ROOT.glob("*.yaml")):
+        first = spec.read_text(encoding="utf-8").splitlines()[0]
+        prefix = "# yaml-language-server: $schema="
+        assert first.startswith(prefix), spec.name
+        target = (spec.parent / first[len(prefix):]).resolve()
+        assert target == (ROOT.parent / "schemas" / "spec-v1.schema.json").resolve(), spec.name

@@ -161,3 +161,15 @@ def test_the_notebook_view_escapes_what_the_spec_says():
     shown = speccheck.check_text(text, config=False)._repr_html_()
     assert "<script>" not in shown and "&lt;script&gt;" in shown
     assert "missing-unit" in shown and "exit code 1" in shown
+
+
+def test_what_would_meet_a_target_reads_the_measured_data_beside_the_spec_too(specs):
+    # the remedies re-check the spec with an input changed; those checks read the data files beside the
+    # spec as the first one does, so the command line and check_text agree on them (a fuzzer case)
+    text = (EXAMPLES / "amplifier-pump-probe-path.yaml").read_text(encoding="utf-8").replace(
+        "laser:\n", "laser:\n  autocorrelation: {file: data/fibre-oscillator-autocorrelation.txt, delay_unit: ps}\n", 1)
+    (specs / "pp.yaml").write_text(text, encoding="utf-8")
+    code, document = cli_json("--no-config", "pp.yaml")
+    result = speccheck.check_text(text, path="pp.yaml", base=specs, config=False)
+    assert any("remedies" in f for f in document["files"][0]["findings"])
+    assert result.to_dict() == document and result.exit_code == code

@@ -48,9 +48,11 @@ class Checker:
         self.values = ValueParser(units)
         self.read = read
         self.data_files = DataFiles()
+        self.path = ""  # the name of the document being checked
 
     def check_text(self, text: str | bytes, path: str) -> FileResult:
         self.data_files.new_document()
+        self.path = path  # the spec's name: its data files are read beside it, in reruns too
         doc, settings, problem = self._prepared(text)
         if problem:
             return FileResult(path, (), set_problems=(problem,))
@@ -62,6 +64,7 @@ class Checker:
         from speccheck.checking import overrides, solving
 
         self.data_files.new_document()
+        self.path = path
         doc, settings, problem = self._prepared(text)
         if problem:
             raise overrides.SettingProblem(problem)
@@ -141,7 +144,7 @@ class Checker:
         the nominal values are the same, and values that agree only within tolerances conflict."""
         from speccheck.checking.walker import check_path
 
-        report = Report("", doc)
+        report = Report(self.path, doc)
         tolerance = self._tolerance(data, report)
         if nominal:
             tolerance = Tolerances({}, {}, 0.0, 0.0, tolerance.margin)

@@ -10,10 +10,26 @@ this list (``tests/test_layers.py`` enforces it):
   boundary, the project configuration, suppressions, measured-data files;
 * ``checking`` – the generic engine, the column check, the path walk, the document checker;
 * ``formats``  – the output formats;
-* this package's top modules – the command line (``cli``), the file system (``files``) and the
-  starter specs (``starter``).
+* this package's top modules – the Python API (``api``), the command line (``cli``), the file
+  system (``files``) and the starter specs (``starter``).
+
+``speccheck.check(*paths)`` and ``speccheck.check_text(text)`` are the API (``speccheck.api``),
+imported on first use so that the command line starts without it.
 """
+
+from typing import TYPE_CHECKING, Any
 
 from speccheck._version import __version__
 
-__all__ = ["__version__"]
+if TYPE_CHECKING:
+    from speccheck.api import Result, check, check_text
+
+__all__ = ["Result", "__version__", "check", "check_text"]
+
+
+def __getattr__(name: str) -> Any:
+    if name in ("check", "check_text", "Result"):
+        from speccheck import api
+
+        return getattr(api, name)
+    raise AttributeError(f"module 'speccheck' has no attribute {name!r}")

@@ -22,29 +22,36 @@ from speccheck.records.findings import FileResult
 @dataclass
 class Batch:
     results: list[FileResult] = field(default_factory=list)
-    messages: list[str] = field(default_factory=list)  # for standard error, in the files' order
+    messages: list[str] = field(default_factory=list)  # for standard error, in the files' order (one line each)
     read_paths: set[str] = field(default_factory=set)  # the data files the specs named
     failed: bool = False  # a file could not be read or checked: exit 2
 
 
 def _one(checker, reader, name: str, path, stdin, max_bytes: int):
     """(result, message or None, failed) for one file."""
-    from speccheck.reading import suppress
-
     shown = files.STDIN_NAME if name == "-" else files.printable(name)
     try:
         data = files.read_stdin(stdin, max_bytes) if name == "-" else files.read_spec(path, max_bytes)
     except MemoryError:
         exc = OSError(errno.ENOMEM, "not enough memory to read it (lower --max-file-size)")
-        return files.read_failure(shown, exc), f"speccheck: cannot read {shown}: {files.reason(exc)}\n", True
+        return files.read_failure(shown, exc), f"cannot read {shown}: {files.reason(exc)}", True
     except OSError as exc:
-        return files.read_failure(shown, exc), f"speccheck: cannot read {shown}: {files.reason(exc)}\n", True
+        return files.read_failure(shown, exc), f"cannot read {shown}: {files.reason(exc)}", True
+    result, failed = check_one(checker, data, shown)
+    return result, None, failed
+
+
+def check_one(checker, data: bytes | str, shown: str) -> tuple[FileResult, bool]:
+    """(result, failed) of one spec's text: checked, its own suppressions applied; a failure inside
+    speccheck becomes an ``internal-error`` finding for that file alone."""
+    from speccheck.reading import suppress
+
     try:
         result = checker.check_text(data, shown)
         findings = suppress.apply(data, result.findings, shown)
     except Exception as exc:  # the last line of defence: one file's failure costs only that file
-        return files.internal_error(shown, exc), None, True
-    return (result if findings is result.findings else dataclasses.replace(result, findings=findings)), None, False
+        return files.internal_error(shown, exc), True
+    return (result if findings is result.findings else dataclasses.replace(result, findings=findings)), False
 
 
 _WORKER: dict = {}

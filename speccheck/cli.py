@@ -17,7 +17,7 @@ import sys
 from pathlib import Path
 
 from speccheck._version import __version__
-from speccheck import files, what_if
+from speccheck import api, files, what_if
 from speccheck.reading.loader import MAX_DEPTH, Limits
 
 MAX_FILE_SIZE = 1024 * 1024 * 1024  # the largest --max-file-size: a spec is read whole into memory
@@ -94,34 +94,14 @@ def _config(args, stderr):
     """The project configuration the arguments ask for; None after reporting a mistake in it."""
     from speccheck.reading import config as cfg
 
-    if args.no_config:
-        return cfg.DEFAULT
     try:
-        if args.config:
-            return cfg.load(Path(args.config))
-        try:
-            found = cfg.find(Path.cwd())
-        except OSError:  # the current folder is gone: there is nothing to find
-            return cfg.DEFAULT
-        return cfg.load(found) if found else cfg.DEFAULT
+        return api.load_config(False if args.no_config else args.config or None)
     except cfg.ConfigError as exc:
         stderr.write(f"speccheck: {exc}\n")
         return None
 
 
-def _fail_level(args, config) -> str:
-    from speccheck.records.findings import SEVERITIES
-
-    if args.fail_on:
-        return args.fail_on
-    if args.strict:  # the stricter of --strict and the configuration
-        return SEVERITIES[max(SEVERITIES.index("warning"), SEVERITIES.index(config.fail_on))]
-    return config.fail_on
-
-
 def _check(args, stdout, stderr, stdin=None) -> int:
-    from speccheck.reading import config as cfg
-    from speccheck.checking.document import Checker, Options
     from speccheck.formats import OutputOptions, writer
     from speccheck.reading.units import UnitSystem
 
@@ -141,18 +121,12 @@ def _check(args, stdout, stderr, stdin=None) -> int:
     config = _config(args, stderr)
     if config is None:
         return 2
-    expansion = files.spec_files(args.paths, cfg.Selector(config) if config.include or config.exclude else None)
-    for pattern in expansion.unmatched:
-        stderr.write(f"speccheck: no spec file matches {files.printable(repr(pattern))}\n")
-    if not expansion.files:
-        stderr.write("speccheck: no spec files (*.yaml, *.yml) found in "
-                     + ", ".join(map(files.printable, args.paths)) + "\n")
-    for name in expansion.skipped:
-        stderr.write(f"speccheck: skipped {files.printable(name)}: left out by the include/exclude patterns of "
-                     f"{files.printable(str(config.path))}\n")
+    found = api.find(args.paths, config)
+    for message in found.messages:
+        stderr.write(f"speccheck: {message}\n")
     from speccheck.reading import unit_table
 
-    inputs = [str(path) for name, path in expansion.files if name != "-"] + (
+    inputs = [str(path) for name, path in found.files if name != "-"] + (
         [str(config.path)] if getattr(config, "path", None) else []) + [str(p) for p in (unit_table.path(),) if p]
     target = None
     if args.output:
@@ -165,23 +139,15 @@ def _check(args, stdout, stderr, stdin=None) -> int:
     if args.max_depth > MAX_DEPTH:
         stderr.write(f"speccheck: --max-depth {args.max_depth} is more than speccheck can read; using {MAX_DEPTH}\n")
     limits = Limits(max_bytes=args.max_file_size, max_nodes=args.max_nodes, max_depth=args.max_depth)
-    from speccheck import batch as batches
-
-    profiles = not args.review and args.format == "html"  # only the HTML report plots the field
-    done = batches.check_files(expansion.files, lambda reader: Checker(
-        units, Options(limits=limits, tolerance=config.tolerance, tolerances=config.tolerances,
-                       profiles=profiles,
-                       settings=tuple(args.settings), remedies="all" if args.review or args.format == "review"
-                       else "unmet"), read=reader),
-        limits.max_bytes, stdin, args.jobs)
-    for message in done.messages:
-        stderr.write(message)
-    results = done.results
-    if what_if.set_problems(results, stderr):
+    fail_on = api.fail_level(config, args.fail_on, args.strict)
+    done = api.run(found, config, settings=tuple(args.settings), fail_on=fail_on, limits=limits, jobs=args.jobs,
+                   profiles=not args.review and args.format == "html",  # only the HTML report plots the field
+                   remedies="all" if args.review or args.format == "review" else "unmet", stdin=stdin, units=units)
+    for message in done.messages[len(found.messages):]:
+        stderr.write(f"speccheck: {message}\n")
+    if any(r.set_problems for r in done.files):
         return 2
-    io_failure = bool(expansion.unmatched) or done.failed
-    results = cfg.apply(results, config)
-    fail_on = _fail_level(args, config)
+    results = list(done.files)
     to_terminal = args.output is None and hasattr(stdout, "isatty") and stdout.isatty()
     color = (args.color or to_terminal) and not args.no_color and not os.environ.get("NO_COLOR")
     import shutil
@@ -191,9 +157,9 @@ def _check(args, stdout, stderr, stdin=None) -> int:
                             width=shutil.get_terminal_size().columns if to_terminal and color else None)
     chosen = "review" if args.review else args.format
     write = writer(chosen)
-    code = 2 if io_failure else 1 if cfg.failing(results, fail_on) else 0
+    code = done.exit_code
     if target is not None:
-        read_data = [p for p in done.read_paths if files.same_file(str(target), Path(p))]
+        read_data = [p for p in done.data_files if files.same_file(str(target), Path(p))]
         if read_data:
             stderr.write(f"speccheck: cannot write {files.printable(args.output)}: it is "
                          f"{files.printable(read_data[0])}, a data file this run reads; input files are never "

@@ -119,23 +119,25 @@ class DataReader:
     """Reads the data files a spec names beside it, and remembers which it read (so the report
     can never be written over one of them)."""
 
-    def __init__(self, max_bytes: int = 50 * 1024 * 1024) -> None:
+    def __init__(self, max_bytes: int = 50 * 1024 * 1024, folder: str | None = None) -> None:
         self.max_bytes = max_bytes
+        self.folder = folder  # where the data files are, for a spec that is not a file (else its folder)
         self.read_paths: set[str] = set()
 
     def __call__(self, name: str, spec: str) -> bytes:
-        return read_beside(name, spec, self.max_bytes, self.read_paths)
+        return read_beside(name, spec, self.max_bytes, self.read_paths, self.folder)
 
 
-def read_beside(name: str, spec: str, max_bytes: int = 50 * 1024 * 1024, read_paths: set | None = None) -> bytes:
-    """Read a data file named in a spec: a relative path inside the spec's folder, a regular
-    file, size-bounded."""
+def read_beside(name: str, spec: str, max_bytes: int = 50 * 1024 * 1024, read_paths: set | None = None,
+                folder: str | None = None) -> bytes:
+    """Read a data file named in a spec: a relative path inside the spec's folder (or inside
+    ``folder``, where given), a regular file, size-bounded."""
     try:
-        folder = Path(spec).resolve().parent
-        target = (folder / name).resolve()
+        where = Path(folder).resolve() if folder is not None else Path(spec).resolve().parent
+        target = (where / name).resolve()
     except (OSError, RuntimeError):  # a symlink loop ("Symlink loop from …")
         raise ValueError("the path cannot be resolved (a symbolic link loop?)") from None
-    if Path(name).is_absolute() or not target.is_relative_to(folder):
+    if Path(name).is_absolute() or not target.is_relative_to(where):
         raise ValueError("data files must be given relative to the spec, inside its folder")
     if read_paths is not None:
         read_paths.add(str(target))

@@ -9,7 +9,7 @@ import math
 import sys
 from pathlib import Path
 
-from speccheck import files
+from speccheck import api, files
 from speccheck.reading.loader import Limits
 
 
@@ -36,18 +36,10 @@ def set_option(p) -> None:
 def setting(text: str) -> tuple[str, str]:
     name, eq, value = text.partition("=")
     name, value = name.strip(), value.strip()
-    if not eq or not name or not value or "." not in name.strip("."):
+    if not eq or not api.valid_setting(name, value):
         raise argparse.ArgumentTypeError(f"expected INPUT=VALUE such as laser.pulse_energy='3 mJ' or "
                                          f"lens.focal_length='100 mm', got {text!r}")
     return name, value
-
-
-def set_problems(results, stderr) -> bool:
-    """Write what a --set could not do to standard error; True if there was any (exit 2)."""
-    bad = [(r.path, p) for r in results for p in r.set_problems]
-    for path, problem in bad:
-        stderr.write(f"speccheck: --set: {files.printable(path)}: {files.printable(problem)}\n")
-    return bool(bad)
 
 
 def solve(args, stdout, stderr, stdin, config) -> int:

@@ -32,7 +32,7 @@ def test_an_error_exits_1_and_prints_file_line_col(tmp_path):
     path = EXAMPLES / "maker-sheet-one-wrong.yaml"
     code, out, _ = cli("check", "--no-sheet", str(path))
     assert code == 1
-    assert f"{path}:10:17: error [relation-conflict]" in out.replace("\n", " ")
+    assert f"{path}:11:17: error [relation-conflict]" in out.replace("\n", " ")
 
 
 def test_a_missing_file_exits_2_and_the_others_are_still_checked(tmp_path):
@@ -62,7 +62,7 @@ def test_json_has_the_contract_shape():
     (file,) = doc["files"]
     (finding,) = [f for f in file["findings"] if f["rule"] != "laser-safety"]
     assert {"rule", "severity", "message", "line", "column", "quantities", "suspect"} <= set(finding)
-    assert finding["suspect"] == "laser.pulse_energy" and finding["line"] == 10
+    assert finding["suspect"] == "laser.pulse_energy" and finding["line"] == 11
     energy = file["sheet"]["laser"]["pulse_energy"]
     assert energy["status"] == "conflict" and energy["unit"] == "J"
     assert energy["value"] == pytest.approx(20e-9)
@@ -135,7 +135,7 @@ def test_review_says_what_is_consistent_impossible_and_implied():
     assert code == 1
     assert "Consistent: wavelength 1030 nm, repetition_rate 1 MHz" in text  # all but the suspect
     assert "pulse_energy 20 nJ," not in text.split("Impossible")[0]
-    assert "Impossible or contradictory: line 10:" in text
+    assert "Impossible or contradictory: line 11:" in text
     code, out, _ = cli("check", "--review", str(EXAMPLES / "oscillator-consistent.yaml"))
     text = " ".join(out.split())
     # By hand: 2 × 530 kW / (π (0.1 cm)²) = 3.37e7 W/cm².
@@ -229,7 +229,7 @@ def test_the_sheet_is_shown_by_default_only_when_one_file_is_checked():
     assert sheet_rows(cli("check", one)[1])
     assert not sheet_rows(cli("check", "--no-sheet", one)[1])
     out = cli("check", one, two)[1]
-    assert not sheet_rows(out) and f"{one}:10:17: error [relation-conflict]" in out
+    assert not sheet_rows(out) and f"{one}:11:17: error [relation-conflict]" in out
     assert out.rstrip().endswith("1 error, 0 warnings, 0 notes, 1 caution in 2 files")
 
 
@@ -264,7 +264,7 @@ def test_on_a_terminal_findings_wrap_at_its_width_and_in_a_pipe_they_do_not(monk
     lines = re.sub(r"\x1b\[[0-9;]*m", "", out.getvalue()).splitlines()
     assert "\x1b[" in out.getvalue() and max(map(len, lines)) <= 72 and len(lines) > 12
     piped = cli("check", "--no-sheet", path)[1].splitlines()
-    (finding,) = [line for line in piped if line.startswith(f"{path}:10:17:")]
+    (finding,) = [line for line in piped if line.startswith(f"{path}:11:17:")]
     assert finding.endswith("kHz for MHz).")  # the whole finding on its line
     out = Terminal()
     run(["check", "--no-sheet", "--no-color", path], stdout=out, stderr=io.StringIO())

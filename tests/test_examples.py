@@ -9,31 +9,31 @@ ROOT = Path(__file__).resolve().parent.parent / "example_specs"
 EXPECTED = {
     "oscillator-consistent.yaml": [],
     "amplifier-khz-consistent.yaml": [],
-    "maker-sheet-one-wrong.yaml": [("relation-conflict", 10, "laser.pulse_energy")],
-    "proposal-intensity-claim.yaml": [("relation-conflict", 18, "laser.peak_intensity")],
+    "maker-sheet-one-wrong.yaml": [("relation-conflict", 11, "laser.pulse_energy")],
+    "proposal-intensity-claim.yaml": [("relation-conflict", 19, "laser.peak_intensity")],
     # the 50 MW target is judged at each point: not met at 2 MHz, not judged at 100 kHz (its values clash)
-    "maker-sheet-operating-points.yaml": [("relation-conflict", 18, None),
-                                          ("operating-point-beyond-limit", 27, None),
-                                          ("target-not-met", 30, None), ("target-unknown", 30, None)],
+    "maker-sheet-operating-points.yaml": [("relation-conflict", 19, None),
+                                          ("operating-point-beyond-limit", 28, None),
+                                          ("target-not-met", 31, None), ("target-unknown", 31, None)],
     # its spectrum is noisy: the transform limit is known only to 137-183 fs, and an interval that
     # wide (over 20 % of the value) is a warning (physics/spectra.py, method step 6)
-    "fibre-oscillator-measured.yaml": [("relation-conflict", 12, "laser.pulse_duration"),
-                                       ("measured-data-quality", 13, None)],
-    "amplifier-pump-probe-path.yaml": [("target-not-met", 40, None)],
-    "proposal-focus-path.yaml": [("target-not-met", 25, None)],
-    "rod-self-focusing.yaml": [("b-integral", 16, None), ("self-focusing", 16, None)],
-    "mirror-damage.yaml": [("optic-damage", 20, None)],
-    "impossible-focus.yaml": [("spot-below-diffraction-limit", 17, None)],
+    "fibre-oscillator-measured.yaml": [("relation-conflict", 13, "laser.pulse_duration"),
+                                       ("measured-data-quality", 14, None)],
+    "amplifier-pump-probe-path.yaml": [("target-not-met", 41, None)],
+    "proposal-focus-path.yaml": [("target-not-met", 26, None)],
+    "rod-self-focusing.yaml": [("b-integral", 17, None), ("self-focusing", 17, None)],
+    "mirror-damage.yaml": [("optic-damage", 21, None)],
+    "impossible-focus.yaml": [("spot-below-diffraction-limit", 18, None)],
     "hhg-argon.yaml": [],
     # the grating pair cancels the stretcher's GDD, but its TOD and the window's leave 33.9 fs
-    "cpa-grating-compressor.yaml": [("target-not-met", 29, None), ("target-not-met", 30, None)],
+    "cpa-grating-compressor.yaml": [("target-not-met", 30, None), ("target-not-met", 31, None)],
     # a peak power that allows for a pedestal, consistent once the sheet states its share
     "fibre-laser-pedestal.yaml": [],
     # the beam traced in space: the pick-off's aperture clips; a 1 % focal length moves the waist by more
     # than its Rayleigh range, so the intensity at a fixed plane is uncertain
-    "window-before-focus.yaml": [("aperture-clipping", 23, None), ("target-uncertain", 27, None)],
-    "typos-and-units.yaml": [("unknown-key", 8, None), ("wrong-dimension", 9, None),
-                             ("missing-unit", 10, None), ("duplicate-key", 12, None)],
+    "window-before-focus.yaml": [("aperture-clipping", 24, None), ("target-uncertain", 28, None)],
+    "typos-and-units.yaml": [("unknown-key", 9, None), ("wrong-dimension", 10, None),
+                             ("missing-unit", 11, None), ("duplicate-key", 13, None)],
 }
 
 
@@ -67,3 +67,12 @@ def test_the_hhg_example_reports_its_cutoff(reading_checker):
     result = reading_checker.check_text((ROOT / "hhg-argon.yaml").read_bytes(), "hhg-argon.yaml")
     (finding,) = [f for f in result.findings if f.rule == "strong-field-figures"]
     assert "cutoff" in finding.message and "argon" in finding.message
+
+
+def test_every_example_starts_with_the_schema_modeline_and_it_points_at_the_schema():
+    for spec in sorted(ROOT.glob("*.yaml")):
+        first = spec.read_text(encoding="utf-8").splitlines()[0]
+        prefix = "# yaml-language-server: $schema="
+        assert first.startswith(prefix), spec.name
+        target = (spec.parent / first[len(prefix):]).resolve()
+        assert target == (ROOT.parent / "schemas" / "spec-v1.schema.json").resolve(), spec.name

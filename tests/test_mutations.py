@@ -10,6 +10,8 @@ written in other scripts, control characters and very long strings typed in.
 About a third of the cases also get random what-ifs on the command line
 (``--set INPUT=VALUE``: inputs the document has and lacks, values the grammar
 reads and values it refuses), from a random stream of their own.
+Each document's JSON report is also compared with the Python API's
+(``speccheck.check_text`` on the same text: the same document and exit code).
 
 Each mutated document is checked in process by ``cli.run`` in every output
 format, and each run must
@@ -39,6 +41,7 @@ Environment:
 from __future__ import annotations
 
 import io
+import json
 import math
 import os
 import random
@@ -837,7 +840,24 @@ def check_once(path: str, fmt: str, extra: tuple = ()) -> tuple[int | None, list
         sample = out.getvalue()
         problems.append(Failure((f"invalid {fmt} output", problem), fmt,
                                 f"{problem}; output begins {sample[:300]!r}"))
+    elif fmt == "json" and out.getvalue():
+        problems += api_problems(path, extra, code, out.getvalue())
     return code, problems
+
+
+def api_problems(path: str, extra: tuple, code: int, out: str) -> list[Failure]:
+    """The library call on the same text (``speccheck.check_text``, its data files under the spec's
+    folder) gives the document and the exit code the command line gave."""
+    try:
+        result = speccheck.check_text(Path(path).read_bytes(), path=path, base=Path(path).parent, config=False,
+                                      sets=[e.split("=", 1)[1] for e in extra])
+    except BaseException as exc:  # noqa: BLE001 - anything escaping the API is the finding
+        return [Failure((type(exc).__name__, innermost_frame(exc.__traceback__), "api"), "api",
+                        _short_traceback(exc))]
+    if result.exit_code != code or result.to_dict() != json.loads(out):
+        return [Failure(("check_text differs from --format json",), "api",
+                        f"exit code {result.exit_code}, the command line's {code}")]
+    return []
 
 
 def check_all(path: str, formats=FORMATS, extra: tuple = ()) -> list[Failure]:

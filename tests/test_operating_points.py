@@ -168,10 +168,10 @@ def test_the_review_of_operating_points_is_a_table_on_one_short_page():
     rows = {line.split()[0] + " " + line.split()[1]: line for line in lines[header + 2:header + 6]}
     assert set(rows) == {"50 kHz", "100 kHz", "1 MHz", "2 MHz"}
     # (the example's 50 MW target, judged at each point, is met at 50 kHz and 1 MHz, not at 2 MHz)
-    assert rows["50 kHz"].rstrip().endswith("consistent; target met (line 30)")
+    assert rows["50 kHz"].rstrip().endswith("consistent; target met (line 31)")
     assert "≥ 380 µJ → 380 … 400 µJ" in rows["50 kHz"]
-    assert rows["100 kHz"].rstrip().endswith("contradiction (line 18)")
-    assert rows["2 MHz"].rstrip().endswith("beyond the sheet's limits (line 27); target not met (line 30)")
+    assert rows["100 kHz"].rstrip().endswith("contradiction (line 19)")
+    assert rows["2 MHz"].rstrip().endswith("beyond the sheet's limits (line 28); target not met (line 31)")
     # 0.8814 × 389.9 µJ / 290 fs (the energy's range 380 … 400 µJ at its middle, by hand) and 12.5 µJ's
     assert "=1.185 GW" in rows["50 kHz"] and "=37.99 MW" in rows["2 MHz"]
     # each implied number once: the peak powers in the table, never again in a sentence per point
@@ -189,7 +189,7 @@ def test_each_implied_quantity_is_said_once_in_a_review_of_a_path():
     phrases = [re.match(r"[^0-9]+", line).group().strip() for line in implied]  # the quantity's words
     assert len(implied) >= 4 and len(set(phrases)) == len(phrases), phrases
     assert "'pump_lens'" in implied[0] and "'probe_lens'" in implied[0] and "at the laser" in implied[0]
-    assert "end: probe_lens" in text and "target not met (line 40)" in text
+    assert "end: probe_lens" in text and "target not met (line 41)" in text
 
 
 # -- awkward operating points through every format

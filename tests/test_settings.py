@@ -59,12 +59,12 @@ def spec(tmp_path) -> Path:
 def test_a_set_value_changes_a_verdict_and_the_file_stays_as_it_was():
     before = FOCUS.read_bytes()
     code, doc = as_json(str(FOCUS))
-    assert code == 1 and [f["line"] for f in findings(doc, "target-not-met")] == [25]  # pulse_duration
+    assert code == 1 and [f["line"] for f in findings(doc, "target-not-met")] == [26]  # pulse_duration
     # the prechirp that cancels the net GDD of -499 fs² left at 'lens' (the example's own
     # dispersion-compensation note) brings the pulse back near its transform limit
     code, doc = as_json("--set", "prechirp.gdd=-300 fs^2", str(FOCUS))
     assert not findings(doc, "target-not-met")
-    assert [f["line"] for f in findings(doc, "target-met")] == [24, 25]
+    assert [f["line"] for f in findings(doc, "target-met")] == [25, 26]
     assert doc["files"][0]["set"] == ["prechirp.gdd=-300 fs^2"]
     assert code == 0
     assert FOCUS.read_bytes() == before

@@ -48,9 +48,11 @@ class Checker:
         self.values = ValueParser(units)
         self.read = read
         self.data_files = DataFiles()
+        self.path = ""  # the name of the document being checked
 
     def check_text(self, text: str | bytes, path: str) -> FileResult:
         self.data_files.new_document()
+        self.path = path  # the spec's name: its data files are read beside it, in reruns too
         doc, settings, problem = self._prepared(text)
         if problem:
             return FileResult(path, (), set_problems=(problem,))
@@ -62,6 +64,7 @@ class Checker:
         from speccheck.checking import overrides, solving
 
         self.data_files.new_document()
+        self.path = path
         doc, settings, problem = self._prepared(text)
         if problem:
             raise overrides.SettingProblem(problem)
@@ -86,9 +89,13 @@ class Checker:
             report.add(p.rule, p.message, line=p.line, column=p.column)
         sheet: dict[str, dict[str, Cell]] = {}
         data = doc.data
+        bare: list = []  # numbers without their unit: the value grammar says so where it reads them
         if not doc.problems or data is not None:
             for rule_id, at, message, at_key in validate(data):
-                report.add(rule_id, message, at, key=at_key)
+                if rule_id == "missing-unit":
+                    bare.append((at, message))
+                else:
+                    report.add(rule_id, message, at, key=at_key)
         title = None
         shape, shape_stated, ends, fields = None, False, (), ()
         if isinstance(data, dict):
@@ -123,6 +130,10 @@ class Checker:
                     report.findings = [f for k, f in enumerate(report.findings) if k not in drop]
             if sheet:
                 self._safety(data, sheet, report)
+        said = {(f.line, f.column) for f in report.findings}
+        for at, message in bare:  # …and the schema where nothing else read it (a stage after the path ended)
+            if doc.where(tuple(at)) not in said:
+                report.add("missing-unit", message, at)
         findings = tuple(sorted(report.findings, key=Finding.sort_key))
         points = tuple(name for name in sheet if name in report.points)
         return FileResult(path, findings, sheet, title, shape, shape_stated, tuple(ends), points, tuple(fields),
@@ -141,7 +152,7 @@ class Checker:
         the nominal values are the same, and values that agree only within tolerances conflict."""
         from speccheck.checking.walker import check_path
 
-        report = Report("", doc)
+        report = Report(self.path, doc)
         tolerance = self._tolerance(data, report)
         if nominal:
             tolerance = Tolerances({}, {}, 0.0, 0.0, tolerance.margin)

@@ -91,13 +91,48 @@ def validate(data) -> list[tuple[str, tuple, str, bool]]:
                 hint = f"; did you mean {guess[0]!r}?" if guess else f"; known keys: {', '.join(known)}"
                 problems.append(("unknown-key", path + (key,), f"unknown key {key!r} in {where}{hint}", True))
             continue
+        unit = _missing_unit(error.instance, path)
+        if unit is not None:
+            problems.append(("missing-unit", unit[0], unit[1], False))
+            continue
         problems.append(("schema-violation", path, _message(error, path), False))
     return problems
 
 
+def _number(x) -> bool:
+    return isinstance(x, (int, float)) and not isinstance(x, bool)
+
+
+def _missing_unit(value, path) -> tuple[tuple, str] | None:
+    """(path, message) for a number written without its unit where the schema wants a value with
+    one, in the value grammar's words; None for any other problem."""
+    from speccheck.reading.dimensions import PARTS, dimensions
+    from speccheck.reading.values import ValueProblem, missing_unit
+
+    where = path
+    if isinstance(value, dict) and value and set(value) <= set(PARTS) \
+            and all(isinstance(v, str) or _number(v) for v in value.values()):
+        numbers = [k for k in PARTS if k in value and _number(value[k])]
+        if not numbers:
+            return None
+        where, value = path + (numbers[0],), value[numbers[0]]
+    dims = dimensions(where) if _number(value) else ()
+    if not dims:
+        return None
+    label = ".".join(map(str, where))
+    if dims == ("angle",):
+        from speccheck.reading.angles import parse_angle
+
+        try:
+            parse_angle(label, value, 0.0)
+        except ValueProblem as e:
+            return path, str(e)
+    return path, missing_unit(label, str(value), dims)
+
+
 def _message(error, path) -> str:
     where = ".".join(map(str, path)) or "the document"
-    if error.validator == "anyOf" and error.schema == schema()["$defs"]["quantity"]:
+    if error.validator == "anyOf" and error.schema in (schema()["$defs"]["quantity"], schema()["$defs"]["with_unit"]):
         return (f"{where}: expected a value like '25 nJ', '25 nJ ± 1 nJ', '>= 20 W' or "
                 f"{{min: …, typical: …, max: …}}, got {_short(error.instance)}")
     if error.validator == "const":

@@ -294,12 +294,7 @@ class ValueParser:
         if not unit:
             if "1" in names:
                 return names["1"], number, "1"
-            expected = " or ".join(DIMENSION_NAMES[d] for d in names)
-            raise ValueProblem(
-                "missing-unit",
-                f"{key}: {text.strip()!r} has no unit; expected {_article(expected)} {expected} such as "
-                f"'{_example(names)}'",
-            )
+            raise ValueProblem("missing-unit", missing_unit(key, text, names))
         if unit.strip() in _LOG_UNITS and (log := self._logarithmic(key, number, unit.strip(), names, text)):
             return log
         try:
@@ -360,7 +355,15 @@ _EXAMPLES = {"m": "800 nm", "s": "150 fs", "Hz": "80 MHz", "1/m": "100 cm^-1", "
              "s^2": "-800 fs^2", "s^3": "2000 fs^3", "s^4": "5000 fs^4", "1": "92%"}
 
 
-def _example(names: dict[str, str]) -> str:
+def missing_unit(key: str, text: str, dimensions) -> str:
+    """The words for a number written without its unit where ``dimensions`` (keys of
+    ``DIMENSION_NAMES``) are expected; the schema reports a bare number in these words too."""
+    expected = " or ".join(DIMENSION_NAMES[d] for d in dimensions)
+    return (f"{key}: {text.strip()!r} has no unit; expected {_article(expected)} {expected} such as "
+            f"'{_example(dimensions)}'")
+
+
+def _example(names) -> str:
     return " or ".join(_EXAMPLES.get(d, "1") for d in names)
 
 

@@ -35,9 +35,10 @@ def test_json_of_the_example_is_unchanged(spec, monkeypatch):
         assert same(json.loads(out.getvalue()), json.loads(stored)), "the example's JSON changed"
 
 
-def same(a, b, rel: float = 1e-12) -> bool:
-    """Equal documents, floats within ``rel`` (the 15th digit of a transcendental function's result is
-    not the same on every CPU and math library); every other value, key and order exactly."""
+def same(a, b, rel: float = 1e-7) -> bool:
+    """Equal documents, floats within ``rel`` (the last digits of a transcendental function's result are
+    not the same on every CPU and math library, and a search to a tolerance of 1e-7 may end elsewhere within
+    it); every other value, key and order exactly."""
     if isinstance(a, float) and isinstance(b, (int, float)) or isinstance(b, float) and isinstance(a, (int, float)):
         return a == b or abs(a - b) <= rel * max(abs(a), abs(b))
     if isinstance(a, dict) and isinstance(b, dict):
@@ -49,6 +50,6 @@ def same(a, b, rel: float = 1e-12) -> bool:
 
 def test_the_comparison_tells_a_changed_document_from_a_rounding():
     assert same({"x": [1.0, "a"]}, {"x": [1.0 + 1e-15, "a"]})
-    assert not same({"x": [1.0, "a"]}, {"x": [1.0 + 1e-9, "a"]})
+    assert not same({"x": [1.0, "a"]}, {"x": [1.0 + 1e-6, "a"]})
     assert not same({"x": 1.0, "y": 2}, {"y": 2, "x": 1.0})  # the order of keys is part of the document
     assert not same({"x": "a"}, {"x": "b"}) and not same([1], [1, 2])

@@ -1,4 +1,4 @@
-"""The JSON of every shipped example, byte for byte, as stored in tests/snapshots/.
+"""The JSON of every shipped example as stored in tests/snapshots/ (byte for byte, or floats to 1e-7).
 
 The snapshot guards a change that must not change behaviour (a reorganisation of
 the code).  A change that alters the output on purpose regenerates it:

@@ -332,7 +332,7 @@ def test_the_pre_commit_hooks_run_gives_findings_one_summary_and_the_caution_onc
     assert code == 1
     assert out.count("IEC 60825-1") == 1 and out.count(" in 3 files") == 1
     assert not [line for line in out.splitlines() if line.startswith(("wavelength ", "pulse_energy "))]
-    assert "example_specs/maker-sheet-one-wrong.yaml:10:17: error [relation-conflict]" in out
+    assert "example_specs/maker-sheet-one-wrong.yaml:11:17: error [relation-conflict]" in out
 
 
 def test_readme_shows_the_ci_step_and_the_pre_commit_snippet():

@@ -110,7 +110,7 @@ def test_the_page_has_the_title_path_grid_and_every_finding(tmp_path, checker):
     assert len(page.all("th", scope="col")) == n_columns + 1  # the quantity column and one per sheet column
     assert len(page.all("li", class_="finding")) == n_findings
     assert [a["data-rule"] for a in page.all("li", class_="finding")].count("target-not-met") == 1
-    assert f"{PUMP_PROBE}:39:27" in page.plain  # file:line:col of the unmet target
+    assert f"{PUMP_PROBE}:40:27" in page.plain  # file:line:col of the unmet target
     assert "a target requirement that the path does not meet" in page.plain  # the rule's summary
     assert len(page.all("details")) == n_findings  # each finding carries its rule's explanation
 

@@ -56,7 +56,7 @@ def test_the_operating_points_table_has_a_row_per_point_with_its_verdict(tmp_pat
     assert list(rows) == ["laser", "50 kHz", "100 kHz", "1 MHz", "2 MHz"] and table["data-rows"] == "5"
     verdicts = [a["data-verdict"] for a in page.all("td", class_="verdict")]
     assert verdicts == ["ok", "ok", "error", "ok", "error"]
-    assert "contradiction (line 18)" in page.plain and "beyond the sheet's limits (line 27)" in page.plain
+    assert "contradiction (line 19)" in page.plain and "beyond the sheet's limits (line 28)" in page.plain
     assert text.index('class="sheet points"') > text.index('<table class="sheet"')  # after the grid
 
 

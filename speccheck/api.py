@@ -34,7 +34,7 @@ Settings = Union[Mapping[str, Any], Iterable[Union[tuple[str, Any], str]], None]
 
 FINDING_KEYS = ("file", "rule", "severity", "message", "line", "column", "quantities", "suspect", "cause")
 CELL_KEYS = ("file", "column", "quantity", "status", "value", "low", "high", "unit", "display_unit", "stated",
-             "assumed", "set")
+             "assumed", "set", "inherited")
 
 
 @dataclass(frozen=True)
@@ -79,7 +79,8 @@ class Result:
                      "low": -math.inf if c.low is None else c.low, "high": math.inf if c.high is None else c.high,
                      "unit": c.unit, "display_unit": c.display_unit,
                      "stated": c.text if c.text and c.status != "derived" else None, "assumed": c.assumed,
-                     "set": c.overridden} for r in self.files for column, cells in r.sheet.items()
+                     "set": c.overridden, "inherited": c.inherited} for r in self.files
+                    for column, cells in r.sheet.items()
                     for q, c in cells.items()]
         raise ValueError(f"to_records: kind is 'findings' or 'cells', not {kind!r}")
 
@@ -90,7 +91,9 @@ class Result:
         def esc(text: object) -> str:
             return html.escape(inert(str(text)))
 
-        counts = ", ".join(f"{self.count(s)} {s}{'s' if self.count(s) != 1 else ''}" for s in SEVERITIES)
+        from speccheck.formats.common import counts_text
+
+        counts = counts_text(self.files)
         parts = [f"<div class=\"speccheck-result\"><p><b>speccheck</b>: {counts} in {len(self.files)} "
                  f"file{'s' if len(self.files) != 1 else ''}; exit code {self.exit_code}</p>"]
         parts += [f"<p>{esc(m)}</p>" for m in self.messages]

@@ -47,3 +47,14 @@ def cautioned(results) -> list:
         if found is not None:
             out.append((r.path, found))
     return out
+
+
+def counts_text(results) -> str:
+    """The counts of a run, as every format's summary says them: each severity without the caution,
+    which counts once however many files it applies to ('3 errors, 1 warning, 2 notes, 1 caution')."""
+    from speccheck.records.findings import SEVERITIES
+
+    counts = {s: sum(1 for r in results for f in r.findings if f.severity == s and f.rule not in CAUTIONS)
+              for s in SEVERITIES}
+    text = ", ".join(f"{counts[s]} {s}{'' if counts[s] == 1 else 's'}" for s in SEVERITIES)
+    return text + (", 1 caution" if cautioned(results) else "")

@@ -34,8 +34,9 @@ from typing import Callable
 
 from speccheck._version import __version__
 from speccheck.formats import cell_text, html_points
+from speccheck.formats.common import counts_text
 from speccheck.formats.html_style import CSS
-from speccheck.records.findings import FileResult, Finding, SEVERITIES
+from speccheck.records.findings import FileResult, Finding
 from speccheck.physics.shapes import DEFAULT_SHAPE
 
 INSTALL_HINT = "pip install 'speccheck[report]'"
@@ -143,10 +144,6 @@ def _figures(result: FileResult, ctx: _Context, units, show: _Show) -> list[tupl
 
 
 # ------------------------------------------------------------------ page
-def _counts(counts: dict) -> str:
-    return ", ".join(f"{counts[s]} {s}{'' if counts[s] == 1 else 's'}" for s in SEVERITIES)
-
-
 def _where(f: Finding) -> str:
     from speccheck.formats.common import place
 
@@ -274,7 +271,7 @@ def _caution(results: list[FileResult]) -> str:
 
 def render(results: list[FileResult], units, plotter=None, why: str | None = None) -> str:
     show = _Show(units)
-    counts = {s: sum(r.count(s) for r in results) for s in SEVERITIES}
+
     n = len(results)
     out = ["<!DOCTYPE html>", '<html lang="en"><head><meta charset="utf-8">',
            f'<meta http-equiv="Content-Security-Policy" content="{_CSP}">',
@@ -284,7 +281,7 @@ def render(results: list[FileResult], units, plotter=None, why: str | None = Non
                               else f"speccheck report: {n} files") + "</title>",
            f"<style>{CSS}</style></head><body>",
            '<header><h1>speccheck report</h1>'
-           f'<p class="summary" id="summary">{_counts(counts)} in {n} file{"" if n == 1 else "s"}</p></header>',
+           f'<p class="summary" id="summary">{counts_text(results)} in {n} file{"" if n == 1 else "s"}</p></header>',
            _caution(results)]
     if plotter is None and any(r.sheet for r in results):
         out.append(f'<p class="notice" id="no-plots">This report has no plots: {escape(why or "no plotting")}. '
@@ -292,7 +289,7 @@ def render(results: list[FileResult], units, plotter=None, why: str | None = Non
     if n > 1:
         out.append('<nav aria-label="files"><ol>' + "".join(
             f'<li><a href="#file-{i + 1}">{escape(r.path)}</a> — {escape(r.title or "")} '
-            f'<span class="meta">({_counts({s: r.count(s) for s in SEVERITIES})})</span></li>'
+            f'<span class="meta">({counts_text([r])})</span></li>'
             for i, r in enumerate(results)) + "</ol></nav>")
     out.append("<main>")
     for i, r in enumerate(results, 1):
@@ -302,7 +299,7 @@ def render(results: list[FileResult], units, plotter=None, why: str | None = Non
                    f'<p class="path"><code>{escape(r.path)}</code></p>'
                    + "".join(f'<p class="set">With <code>--set {escape(t)}</code> (the file is unchanged)</p>'
                              for t in r.settings)
-                   + f'<p class="counts">{_counts({s: r.count(s) for s in SEVERITIES})}</p>'
+                   + f'<p class="counts">{counts_text([r])}</p>'
                    "<h3>Findings</h3>")
         if r.findings:
             out.append('<ol class="findings">' + "".join(_finding(f) for f in r.findings) + "</ol>")

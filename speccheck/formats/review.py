@@ -14,7 +14,8 @@ from rich.text import Text
 
 from speccheck.formats import cell_text, points
 from speccheck.formats.human import QuietConsole
-from speccheck.records.findings import FileResult, SEVERITIES
+from speccheck.formats.common import counts_text
+from speccheck.records.findings import CAUTIONS, FileResult
 from speccheck.reading.units import choose_unit, format_quantity
 
 _STYLE = {"error": "bold red", "warning": "yellow", "note": "cyan"}
@@ -68,8 +69,10 @@ def _table(console, result: FileResult, numbers) -> None:
 
 def write(results: list[FileResult], out, options) -> None:
     color = bool(options and options.color)
+    # on a terminal, wrapped at its width; in a pipe each line whole, as the human format writes them
+    width = options.width if options and options.width else (None if color else 100_000)
     console = QuietConsole(file=out, color_system="auto" if color else None, force_terminal=color,
-                      no_color=not color, highlight=False, emoji=False, width=None if color else 100)
+                           no_color=not color, highlight=False, emoji=False, width=width)
     units = options.units
     numbers = cell_text.Numbers(units)
     for result in results:
@@ -120,11 +123,10 @@ def write(results: list[FileResult], out, options) -> None:
         others = [f for f in result.findings if f.severity != "error"
                   and not (shown and f.rule == "target-met" and f.message.startswith("at operating point"))]
         for f in others:
-            console.print(Text(f"  {f.severity.capitalize()}: ", style=_STYLE[f.severity])
+            label = "Caution" if f.rule in CAUTIONS else f.severity.capitalize()
+            console.print(Text(f"  {label}: ", style=_STYLE[f.severity])
                           + Text(f"{_at(f)}: {f.message}" if f.line or f.origin else f.message))
         if not errors:
             console.print(Text("  No claim contradicts another.", style="green"))
         console.print()
-    counts = {s: sum(r.count(s) for r in results) for s in SEVERITIES}
-    console.print(", ".join(f"{counts[s]} {s}{'' if counts[s] == 1 else 's'}" for s in SEVERITIES)
-                  + f" in {len(results)} file{'' if len(results) == 1 else 's'}")
+    console.print(counts_text(results) + f" in {len(results)} file{'' if len(results) == 1 else 's'}")

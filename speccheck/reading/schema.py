@@ -141,6 +141,8 @@ def _message(error, path) -> str:
         return f"{where}: {_short(error.instance)} is not one of {', '.join(map(str, error.validator_value))}"
     if error.validator == "required":
         return f"{where}: {error.message}"
+    if error.validator == "type" and not error.absolute_path and error.instance is None:
+        return "the file holds no spec (it is empty or only comments): expected a mapping with spec_version and laser"
     if error.validator == "type":
         return f"{where}: expected {error.validator_value}, got {_short(error.instance)}"
     return f"{where}: {error.message}"

@@ -71,7 +71,9 @@ def parse_tolerance(raw, default: float = 0.05) -> float:
             raise ValueProblem("invalid-value", f"tolerance must be a percentage like '5%', got {raw!r}")
         value = float(match.group(1)) / (100.0 if match.group(2) else 1.0)
     if not (math.isfinite(value) and 0.0 <= value < 1.0):
-        raise ValueProblem("invalid-value", f"tolerance must be between 0% and 100%, got {raw!r}")
+        plain = isinstance(raw, (int, float)) and math.isfinite(value) and 1.0 <= value < 100.0
+        hint = f" (a plain number is a fraction, 0.05 for 5%: write '{raw:g}%')" if plain else ""
+        raise ValueProblem("invalid-value", f"tolerance must be between 0% and 100%, got {raw!r}{hint}")
     return value
 
 

@@ -155,6 +155,10 @@ def test_records_are_flat_with_the_same_keys(specs):
     assert len(result.to_records("cells")) == sum(len(c) for r in result.files for c in r.sheet.values())
     with pytest.raises(ValueError):
         result.to_records("rows")
+    # an operating point's value taken from the laser block says so, as in JSON and CSV
+    points = speccheck.check_text((EXAMPLES / "maker-sheet-operating-points.yaml").read_text(encoding="utf-8"))
+    by_place = {(r["column"], r["quantity"]): r for r in points.to_records("cells")}
+    assert by_place[("50 kHz", "pulse_duration")]["inherited"] and not by_place[("laser", "pulse_duration")]["inherited"]
 
 
 def test_the_notebook_view_escapes_what_the_spec_says():

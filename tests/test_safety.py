@@ -117,3 +117,18 @@ def test_json_keeps_the_caution_with_each_file(tmp_path):
     doc = json.loads(out.getvalue())
     assert [[f["rule"] for f in file["findings"]] for file in doc["files"]] == [["laser-safety"]] * 2
     assert doc["counts"]["note"] == 2
+
+
+def test_every_summary_counts_the_caution_once_and_apart_from_the_notes(tmp_path):
+    import speccheck
+
+    spec = Path(__file__).resolve().parent.parent / "example_specs" / "maker-sheet-operating-points.yaml"
+    texts = {}
+    for fmt in ("human", "review", "html"):
+        out = io.StringIO()
+        run(["check", "--no-config", "--format", fmt, str(spec)], out, io.StringIO())
+        texts[fmt] = out.getvalue()
+    texts["notebook"] = speccheck.check_text(spec.read_text(encoding="utf-8"))._repr_html_()
+    for fmt, text in texts.items():
+        assert "2 notes, 1 caution" in text and "3 notes" not in text, fmt
+    assert "Caution: line" in texts["review"] and "Note: line 8: laser safety" not in texts["review"]

@@ -169,3 +169,9 @@ def test_the_schema_alone_names_a_bare_number_in_the_value_grammars_words():
     assert validate({"spec_version": 1, "laser": {"pulse_energy": 25, "m2": 1.1}}) == [
         ("missing-unit", ("laser", "pulse_energy"),
          "laser.pulse_energy: '25' has no unit; expected an energy such as '25 nJ'", False)]
+
+
+def test_an_empty_file_says_it_holds_no_spec(checker):
+    for text in ("", "# only a comment\n"):
+        [f] = checker.check_text(text, "empty.yaml").findings
+        assert f.rule == "schema-violation" and "holds no spec" in f.message and "None" not in f.message

@@ -136,3 +136,10 @@ def test_a_bound_written_without_quotes_gets_a_hint(check):
     r = check("laser:\n  wavelength: 800 nm\n  average_power: >= 20 W\n")
     (finding,) = [f for f in r.findings if f.rule == "yaml-syntax"]
     assert "must be quoted" in finding.message and "'>= 20 W'" in finding.message
+
+
+@pytest.mark.parametrize("raw", [5, 3, 1])
+def test_a_tolerance_written_as_a_plain_number_above_one_says_a_plain_number_is_a_fraction(raw):
+    with pytest.raises(ValueProblem) as e:
+        parse_tolerance(raw)
+    assert f"write '{raw}%'" in e.value.message

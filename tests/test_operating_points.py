@@ -44,6 +44,9 @@ def test_a_point_above_the_sheets_own_maximum(check):
     assert ("operating-point-beyond-limit", 16) in rules_of(result)
     (finding,) = [f for f in result.findings if f.rule == "operating-point-beyond-limit"]
     assert "20 W" in finding.message and "2 MHz" in finding.message
+    # and its cell is marked, as a conflict is, in every format's grid
+    assert cell(result, "average_power", "2 MHz").status == "conflict"
+    assert cell(result, "repetition_rate", "2 MHz").status == "stated"
 
 
 def test_overriding_a_plain_nominal_value_is_not_a_limit(check):

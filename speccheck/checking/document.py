@@ -222,7 +222,14 @@ class Checker:
             check = BlockCheck(self, name, merged, tolerance, report, paths, notes=False)  # noted once, at the laser
             sheet[name] = check.run()
             report.points[name] = i
+            before = len(report.findings)
             self._sheet_limits(name, block, point, i, check, report)
+            for f in report.findings[before:]:  # a value beyond the sheet's own limit is marked in its cell
+                for q in f.quantities:
+                    column, _, quantity = q.partition(".")
+                    cell = sheet[name].get(quantity) if column == name else None
+                    if cell is not None and cell.status == "stated":
+                        sheet[name][quantity] = cell._replace(status="conflict")
         report.dedupe = False
 
     def _sheet_limits(self, name: str, block: dict, point: dict, i: int, check: "BlockCheck",

@@ -360,3 +360,25 @@ def test_with_a_large_fod_the_compensation_is_the_best_of_a_brute_force_grid():
     grid = max(peak(gg * FS**2, tt * FS**3) for gg in np.linspace(-1000, 5000, 21) for tt in np.linspace(0, 24000, 21))
     assert peak(g, t) >= 0.98 * grid
     assert peak(g, t) > 1.3 * peak(0.0, 0.0)
+
+
+def test_the_measures_of_all_rows_at_once_are_those_of_each_row_alone():
+    # measure_set measures every corner's intensity together (_row_measures); each row must give what
+    # the one-row measure gives it: a Gaussian, a TOD-ringed pulse (satellites, minima between them), a
+    # pulse on a pedestal and one at the window's edge
+    t = np.linspace(-40.0, 40.0, 4096)
+    dt = float(t[1] - t[0])
+    rows = np.array([
+        np.exp(-4.0 * math.log(2.0) * t**2),
+        np.exp(-4.0 * math.log(2.0) * t**2) + 0.6 * np.exp(-((t - 3.0) / 0.8) ** 2) + 0.2 * np.exp(-((t + 5) / 0.5) ** 2),
+        np.exp(-4.0 * math.log(2.0) * (t / 7.0) ** 2) * (1.0 + 0.3 * np.cos(3.0 * t)) ** 2,
+        0.02 * np.exp(-((t / 15.0) ** 2)) + np.exp(-4.0 * math.log(2.0) * (t / 0.9) ** 2),
+        np.exp(-4.0 * math.log(2.0) * ((t - 39.0) / 2.0) ** 2) + 1e-9,
+    ])
+    together = F._row_measures(t, rows, dt)
+    for row, (duration, factor, share) in zip(rows, together):
+        alone = F._measures(t, row, dt, None, None, None)
+        assert (duration, factor, share) == (alone.duration, alone.peak_factor, alone.main_peak)
+    # and the independent reference for the first row: a Gaussian's FWHM 1 and P_pk·τ/E = 2√(ln2/π)
+    assert together[0][0] == pytest.approx(1.0, rel=1e-6)
+    assert together[0][1] == pytest.approx(2.0 * math.sqrt(math.log(2.0) / math.pi), rel=1e-6)

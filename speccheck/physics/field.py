@@ -217,40 +217,70 @@ def measure_set(env: Envelope, terms, omega0: float, points) -> list[Measures]:
     with np.errstate(invalid="ignore"):
         base_phase = total_phase(terms, omega0, np.where(inside, dw, 0.0))
     finite = bool(np.all(np.isfinite(base_phase)))
-    quad, cubic = dw * dw / 2.0, dw * dw * dw / 6.0
     m = _PAD * n
     dt = window / m
     times = (np.arange(m) - m // 2) * dt
-    # every corner on one grid, one FFT for all of them (a row each)
-    padded = np.zeros((len(points), m), dtype=complex)
+    # every corner on one grid, one FFT for all of them (a row each), the measures of all rows at once
+    scales = [p[0] for p in points]
     amplitudes: dict = {}
-    typical = None
-    for row, (scale, gdd, tod) in enumerate(points):
+    for scale in scales:
         if scale not in amplitudes:
             amp = env.at(dw, scale)
             mag = np.abs(amp)
             amplitudes[scale] = (amp, mag, (mag > _FLOOR * mag.max()) & inside)
-        amp, mag, live = amplitudes[scale]
-        phi = base_phase
-        if gdd:
-            phi = phi + gdd * quad
-        if tod:
-            phi = phi + tod * cubic
-        if not finite:
-            undefined = live & ~np.isfinite(phi)
-            if np.any(undefined & (mag > _UNDEFINED_OK * mag.max())):
-                raise OutOfModelRange("a phase is not defined across the pulse's spectrum (beyond the range of "
-                                      "its formula)")
-            live = live & ~undefined
-        phi = np.where(live, phi, 0.0)
-        spec = np.where(live, amp, 0.0) * np.exp(1j * phi)
-        padded[row, : n // 2], padded[row, -(n // 2):] = spec[: n // 2], spec[n // 2:]
-        if row == 0:
-            typical = (spec, phi)
-    intensity = np.fft.fftshift(np.abs(np.fft.fft(padded, axis=1)) ** 2, axes=1)
+    amp = np.array([amplitudes[s][0] for s in scales])
+    live = np.array([amplitudes[s][2] for s in scales])
+    gdds = np.array([[p[1]] for p in points], dtype=float)
+    tods = np.array([[p[2]] for p in points], dtype=float)
+    phi = base_phase + gdds * (dw * dw / 2.0) + tods * (dw * dw * dw / 6.0)
+    if not finite:
+        undefined = live & ~np.isfinite(phi)
+        mags = np.array([amplitudes[s][1] for s in scales])
+        if np.any(undefined & (mags > _UNDEFINED_OK * mags.max(axis=1, keepdims=True))):
+            raise OutOfModelRange("a phase is not defined across the pulse's spectrum (beyond the range of "
+                                  "its formula)")
+        live = live & ~undefined
+    phi = np.where(live, phi, 0.0)
+    spec = np.where(live, amp, 0.0) * _exp_i(phi, gdds, tods, base_phase, dw)
+    # (-1)^j on the input puts t = 0 at the middle of the FFT's output (fftshift without a copy): the
+    # padded index of each of the n points has the parity of its own index, as n and m are even
+    padded = np.zeros((len(points), m), dtype=complex)
+    signed = spec * _ALTERNATING[n] if n in _ALTERNATING else spec * _alternating(n)
+    padded[:, : n // 2], padded[:, -(n // 2):] = signed[:, : n // 2], signed[:, n // 2:]
+    transformed = np.fft.fft(padded, axis=1)
+    intensity = (transformed * transformed.conj()).real
+    if env.shape == "flat_top":
+        intensity = np.array([_resolved(env, intensity[row], dt, scales[row]) for row in range(len(points))])
+    rows = _row_measures(times, intensity, dt)
     # the residual phase only at the first point (the typical one): the only one a column shows
-    return [_whole(env, _measures(times, _resolved(env, intensity[row], dt, points[row][0]), dt,
-                                  *(typical if row == 0 else (None, None)), dw)) for row in range(len(points))]
+    rms = _phase_rms(spec[0], dw, phi[0])
+    return [_whole(env, Measures(d, a, share, rms if row == 0 else float("nan"), "fft"))
+            for row, (d, a, share) in enumerate(rows)]
+
+
+_ALTERNATING: dict = {}
+
+
+def _alternating(n: int) -> np.ndarray:
+    sign = np.ones(n)
+    sign[1::2] = -1.0
+    _ALTERNATING[n] = sign
+    return sign
+
+
+def _exp_i(phi: np.ndarray, gdds: np.ndarray, tods: np.ndarray, base: np.ndarray, dw: np.ndarray) -> np.ndarray:
+    """exp(i φ) for every row, φ = base + GDD Δω²/2 + TOD Δω³/6 (zero where not live): the rows share few
+    GDDs and TODs, so it is the product of one exponential per distinct term (fewer complex
+    exponentials, the costliest step); where a row's φ was zeroed (not live) its amplitude is zero too."""
+    rows = len(phi)
+    g_values, g_rows = np.unique(gdds[:, 0], return_inverse=True)
+    t_values, t_rows = np.unique(tods[:, 0], return_inverse=True)
+    if len(g_values) + len(t_values) + 1 >= rows or not np.all(np.isfinite(base)):
+        return np.exp(1j * phi)
+    out = np.exp(1j * base) * np.exp(1j * (g_values[:, None] * (dw * dw / 2.0)))[g_rows.ravel()]
+    if len(t_values) > 1 or t_values[0]:
+        out *= np.exp(1j * (t_values[:, None] * (dw * dw * dw / 6.0)))[t_rows.ravel()]
+    return out
 
 
 # The share of a rectangle's energy inside the flat top's cut at ±60/τ0: ∫ sinc²(x/2π) dx over ±60, by
@@ -321,8 +351,47 @@ def _measures(t, intensity, dt, spec, dw, phi) -> Measures:
     main = float(np.sum(intensity[left:right + 1])) * dt / energy
     if spec is None:
         return Measures(float(duration), float(a), min(main, 1.0), float("nan"), "fft")
+    return Measures(float(duration), float(a), min(main, 1.0), _phase_rms(spec, dw, phi), "fft")
+
+
+def _phase_rms(spec, dw, phi) -> float:
+    """The intensity-weighted rms of the spectral phase beyond its constant and linear parts."""
     w = np.abs(spec) ** 2
     mean = float(np.sum(w * phi) / np.sum(w))
     slope = float(np.sum(w * (phi - mean) * dw) / max(np.sum(w * dw * dw), 1e-300))
-    rms = math.sqrt(float(np.sum(w * (phi - mean - slope * dw) ** 2) / np.sum(w)))
-    return Measures(float(duration), float(a), min(main, 1.0), rms, "fft")
+    return math.sqrt(float(np.sum(w * (phi - mean - slope * dw) ** 2) / np.sum(w)))
+
+
+
+def _row_measures(t: np.ndarray, intensity: np.ndarray, dt: float) -> list[tuple[float, float, float]]:
+    """``_measures``' duration, peak-power factor and main-peak share for every row of ``intensity``: the
+    same steps (the parabola through the peak, the outermost half-maximum crossings by inverse cubic
+    interpolation, the energy between the minima that bound the main peak), the whole-row operations
+    done for all rows at once and the few-sample ones on each row."""
+    if not np.all(np.isfinite(intensity)):
+        raise OutOfModelRange("the field is not finite")
+    m = intensity.shape[1]
+    ks = intensity.argmax(axis=1).tolist()
+    peaks = [_peak(row, k) for row, k in zip(intensity, ks)]
+    if not min(peaks) > 0.0:
+        raise OutOfModelRange("the field is not finite")
+    halves = np.array(peaks)[:, None] / 2.0
+    above = intensity >= halves
+    los = above.argmax(axis=1).tolist()
+    his = (m - 1 - above[:, ::-1].argmax(axis=1)).tolist()
+    energies = (intensity.sum(axis=1) * dt).tolist()
+    # the minima below half the peak: seen from the right (falls at j: I[j-1] > I[j]), from the left (rises)
+    low = ~above
+    falls = (intensity[:, :-1] > intensity[:, 1:]) & low[:, 1:]  # index i: the minimum at j = i + 1
+    rises = (intensity[:, 1:] > intensity[:, :-1]) & low[:, :-1]  # index i: the minimum at j = i
+    out = []
+    for r, (k, peak, lo, hi, energy) in enumerate(zip(ks, peaks, los, his, energies)):
+        row, half = intensity[r], peak / 2.0
+        duration = _crossing(t, row, hi, half) - _crossing(t, row, lo - 1, half)
+        left = np.flatnonzero(falls[r, :k])
+        right = np.flatnonzero(rises[r, k:])
+        left = int(left[-1]) + 1 if left.size else 0
+        right = k + int(right[0]) if right.size else m - 1
+        main = float(np.sum(row[left:right + 1])) * dt / energy
+        out.append((float(duration), float(peak * duration / energy), min(main, 1.0)))
+    return out

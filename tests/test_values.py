@@ -143,3 +143,19 @@ def test_a_tolerance_written_as_a_plain_number_above_one_says_a_plain_number_is_
     with pytest.raises(ValueProblem) as e:
         parse_tolerance(raw)
     assert f"write '{raw}%'" in e.value.message
+
+
+@pytest.mark.parametrize("unit, keep, stride", [
+    ("W", False, 3), ("fs", True, 1), ("nm", True, 3), ("mJ", True, 7), ("uJ", True, 7), ("MHz", False, 7),
+    ("mm", True, 7), ("W/cm^2", False, 50), ("1", False, 50), ("J/m^2", False, 11), ("µm", False, 7),
+])
+def test_the_unit_table_gives_the_choice_made_afresh_at_every_step(units, unit, keep, stride):
+    # choose_unit looks its answer up in a table of the steps (1/10000 of a decade) where it changes;
+    # asked afresh at every step from 1e-22 to 1e22 (its value rebuilt as the choice sees it), the
+    # choice must be the table's
+    from speccheck.reading.units import _choose_unit, choose_unit
+
+    for step in range(-220_000, 220_000, stride):
+        value = 10.0 ** (step / 1e4)
+        assert choose_unit(units, value, unit, keep) == _choose_unit(units, value, unit, keep), (step, unit)
+        assert choose_unit(units, -value, unit, keep) == _choose_unit(units, value, unit, keep)

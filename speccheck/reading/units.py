@@ -11,6 +11,7 @@ CODATA values here and nowhere else.
 
 from __future__ import annotations
 
+import bisect
 import math
 import re
 from functools import lru_cache
@@ -174,20 +175,52 @@ def choose_unit(units: UnitSystem, si_value: float, display_unit: str, keep: boo
     if display_unit in _FIXED or not math.isfinite(si_value) or si_value == 0:
         return display_unit
     # The choice depends only on the number's order of magnitude (its first digits matter only
-    # near a prefix boundary): cache it by log10 of the value in steps of 1/10000 of a decade.
+    # near a prefix boundary): it is made on log10 of the value in steps of 1/10000 of a decade,
+    # from a table of the steps where it changes, made once per unit (``_choices``).
     step = round(math.log10(abs(si_value)) * 1e4)
-    return _choose_unit(units, math.copysign(10.0 ** (step / 1e4), si_value), display_unit, keep)
+    tables = units.__dict__.setdefault("_unit_choices", {})
+    table = tables.get((display_unit, keep))
+    if table is None:
+        table = tables[(display_unit, keep)] = _choices(units, display_unit, keep)
+    steps, names = table
+    return names[bisect.bisect_right(steps, step)] if steps else names[0]
 
 
-@lru_cache(maxsize=8192)
-def _choose_unit(units: UnitSystem, si_value: float, display_unit: str, keep: bool) -> str:
-    if display_unit in _FIXED or not math.isfinite(si_value) or si_value == 0:
-        return display_unit
-    base = display_unit
+def _choices(units: UnitSystem, display_unit: str, keep: bool) -> tuple[list, list]:
+    """Where the unit ``_choose_unit`` gives changes, as (steps, names): names[i] holds from steps[i-1]
+    up to steps[i].  Its answer flips only where one of its comparisons does (a prefix's threshold, the
+    edges of the range a chosen unit is kept in), so it is asked at a few steps about each of those
+    and nowhere else; a test asks it at every step over the whole range against this table."""
+    base = _base_unit(display_unit)
+    if base not in _PREFIXABLE:
+        return [], [display_unit]
+    edges = [scale * 0.9995 * units.factor(base) for scale, _ in _PREFIXES]
+    if keep:
+        edges += [0.1 * units.factor(display_unit), 1e4 * units.factor(display_unit)]
+    candidates = sorted({s for edge in edges for s in range(math.floor(math.log10(edge) * 1e4) - 3,
+                                                             math.ceil(math.log10(edge) * 1e4) + 4)})
+    steps: list = []
+    names = [_choose_unit(units, 10.0 ** (candidates[0] / 1e4), display_unit, keep)]
+    for s in candidates[1:]:
+        name = _choose_unit(units, 10.0 ** (s / 1e4), display_unit, keep)
+        if name != names[-1]:
+            steps.append(s)  # the first step of the new name: bisect_right counts the changes at or below
+            names.append(name)
+    return steps, names
+
+
+def _base_unit(display_unit: str) -> str:
     for _, p in _PREFIXES + ((1e-6, "u"),):
         if p and display_unit.startswith(p) and display_unit[len(p):] in _PREFIXABLE:
-            base = display_unit[len(p):]
-            break
+            return display_unit[len(p):]
+    return display_unit
+
+
+def _choose_unit(units: UnitSystem, si_value: float, display_unit: str, keep: bool) -> str:
+    """The choice itself, for a positive value (the table ``_choices`` is made of its answers)."""
+    if display_unit in _FIXED or not math.isfinite(si_value) or si_value == 0:
+        return display_unit
+    base = _base_unit(display_unit)
     if base not in _PREFIXABLE:
         return display_unit
     if keep and 0.1 <= abs(si_value / units.factor(display_unit)) < 1e4:

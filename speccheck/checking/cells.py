@@ -28,40 +28,46 @@ def build(col) -> dict[str, Cell]:
                 centres[i] = math.log(value)
     typical = col.nominal_with(removed, centres) if centres else nominal
     out: dict[str, Cell] = {}
+    state_lo, state_hi, fixed, units, stated = d.state.lo, d.state.hi, col.fixed, col.c.units, col.stated
+    inf = math.inf
     for i, q in enumerate(names):
-        quantity = BY_NAME[q]
-        if q in col.stated:
-            s = col.stated[q]
-            low = s.low if s.low > 0.0 else None
-            high = s.high if math.isfinite(s.high) else None
-            value = s.typical if s.typical is not None else centre(low, high)
-            if i in removed:
-                state = d.state if d.suspects else implied(col.net, col.log_stated, i)
-                ilo, ihi = (exp(state.lo[i]), exp(state.hi[i])) if state.ok else (None, None)
-                out[q] = Cell("conflict", low, high, value, quantity.si_unit, s.unit, ilo, ihi,
-                              text=s.text, overridden=col.overridden(q), inherited=col.from_laser(q))
-            elif q in col.carried:
-                unit = col.unit_for(q, value) if value else s.unit
-                out[q] = Cell("derived", low, high, value, quantity.si_unit, unit)
-            else:
-                # what the rest of the spec implies narrows the stated interval ("<= 80 µJ" with
-                # ">= 30 W" at 600 kHz is 50 … 80 µJ); the text as written stays in the cell
-                low, high = _narrowed(s, d.state, i)
-                if s.typical is None:
-                    value = _typical_of(nominal.get(i), low, high)
-                out[q] = Cell("stated", low, high, value, quantity.si_unit, s.unit, text=s.text,
-                              overridden=col.overridden(q), inherited=col.from_laser(q))
-        elif d.state.known(i) and i not in col.fixed:
-            low, high = exp(d.state.lo[i]), exp(d.state.hi[i])
-            value = centre(low, high)
+        if q not in stated:  # derived (the branch most cells take, written out for speed)
+            y_lo, y_hi = state_lo[i], state_hi[i]
+            if not (y_lo > -inf or y_hi < inf) or i in fixed:
+                continue
+            low, high = exp(y_lo), exp(y_hi)
             if i in typical:
-                value = min(max(exp(typical[i]) or math.inf, low or 0.0), high or math.inf)
+                value = min(max(exp(typical[i]) or inf, low or 0.0), high or inf)
                 value = value if math.isfinite(value) else None
+            else:
+                value = centre(low, high)
             if value is None and low is None and high is None:
                 continue  # beyond what a float holds: nothing to show
+            quantity = BY_NAME[q]
             ref = value if value is not None else (low if low is not None else high)
-            unit = choose_unit(col.c.units, ref, quantity.display_unit)
+            out[q] = Cell("derived", low, high, value, quantity.si_unit, choose_unit(units, ref, quantity.display_unit))
+            continue
+        quantity = BY_NAME[q]
+        s = stated[q]
+        low = s.low if s.low > 0.0 else None
+        high = s.high if math.isfinite(s.high) else None
+        value = s.typical if s.typical is not None else centre(low, high)
+        if i in removed:
+            state = d.state if d.suspects else implied(col.net, col.log_stated, i)
+            ilo, ihi = (exp(state.lo[i]), exp(state.hi[i])) if state.ok else (None, None)
+            out[q] = Cell("conflict", low, high, value, quantity.si_unit, s.unit, ilo, ihi,
+                          text=s.text, overridden=col.overridden(q), inherited=col.from_laser(q))
+        elif q in col.carried:  # shown in its display unit (``BlockCheck.unit_for`` of a carried value)
+            unit = choose_unit(units, value, quantity.display_unit) if value else s.unit
             out[q] = Cell("derived", low, high, value, quantity.si_unit, unit)
+        else:
+            # what the rest of the spec implies narrows the stated interval ("<= 80 µJ" with
+            # ">= 30 W" at 600 kHz is 50 … 80 µJ); the text as written stays in the cell
+            low, high = _narrowed(s, d.state, i)
+            if s.typical is None:
+                value = _typical_of(nominal.get(i), low, high)
+            out[q] = Cell("stated", low, high, value, quantity.si_unit, s.unit, text=s.text,
+                          overridden=col.overridden(q), inherited=col.from_laser(q))
     derived_from = [col.net.index[c] for c in out]
     for q, value in col.defaults.items():
         if q not in out and d.state.uses_quantity(derived_from, col.net.index[q]):

@@ -116,8 +116,17 @@ class _SheetWriter:
         return text + "}"
 
     def sheet(self, sheet: dict) -> str:
+        # a value carried unchanged along a path is the same cell in every column: written once per file
+        written: dict = {}
+
+        def cell(c: Cell) -> str:
+            text = written.get(c)
+            if text is None:
+                text = written[c] = self.cell(c)
+            return text
+
         return "{" + ",".join(
-            f"{self.string(block)}:{{" + ",".join(f"{self.string(q)}:{self.cell(c)}" for q, c in cells.items()) + "}"
+            f"{self.string(block)}:{{" + ",".join(f"{self.string(q)}:{cell(c)}" for q, c in cells.items()) + "}"
             for block, cells in sheet.items()) + "}"
 
 

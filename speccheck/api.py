@@ -116,7 +116,7 @@ class Found:
 
     files: tuple[tuple[str, Path], ...]
     messages: tuple[str, ...]
-    unmatched: bool  # a glob matched no file: the run exits 2
+    unmatched: bool  # a glob matched no file, or nothing was found at all: the run exits 2
 
 
 def load_config(choice: ConfigChoice = None) -> Config:
@@ -149,7 +149,10 @@ def find(paths: Iterable[str], config: Config) -> Found:
         messages.append("no spec files (*.yaml, *.yml) found in " + ", ".join(map(files.printable, names)))
     messages += [f"skipped {files.printable(name)}: left out by the include/exclude patterns of "
                  f"{files.printable(str(config.path))}" for name in expansion.skipped]
-    return Found(tuple(expansion.files), tuple(messages), bool(expansion.unmatched))
+    # nothing to check is a failure to find (exit 2), as a glob that matches nothing is, unless the
+    # project's include/exclude left the files out (a hook handing over only files it excludes)
+    nothing = not expansion.files and not expansion.skipped
+    return Found(tuple(expansion.files), tuple(messages), bool(expansion.unmatched) or nothing)
 
 
 def fail_level(config: Config, fail_on: str | None = None, strict: bool = False) -> str:

@@ -105,8 +105,12 @@ def _check(args, stdout, stderr, stdin=None) -> int:
     from speccheck.formats import OutputOptions, writer
     from speccheck.reading.units import UnitSystem
 
-    if any(not p for p in args.paths) or args.output == "":
+    if any(not p for p in args.paths):
         stderr.write("speccheck: an empty path was given (an unset variable?); name a file, a folder or '-'\n")
+        return 2
+    if args.output == "":
+        stderr.write("speccheck: -o was given an empty path (an unset variable?); name the report file, or '-' "
+                     "for standard output\n")
         return 2
     if args.output == "-":  # standard output, as without -o
         args.output = None

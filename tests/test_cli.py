@@ -195,9 +195,22 @@ def test_review_of_a_path_speaks_of_its_end_not_of_every_stage():
     assert "operating point" not in out
 
 
-def test_a_folder_without_specs_says_so(tmp_path):
+def test_a_folder_without_specs_says_so_and_fails_as_a_glob_that_matches_nothing_does(tmp_path):
+    # a mistyped or emptied folder in CI must not pass as "0 errors"
     code, out, err = cli("check", str(tmp_path))
-    assert code == 0 and "no spec files" in err and "0 files" in out
+    assert code == 2 and "no spec files" in err and "0 files" in out
+    code, _, err = cli("check", str(tmp_path / "*.yaml"))
+    assert code == 2 and "no spec file matches" in err
+
+
+def test_files_the_project_leaves_out_are_not_a_failure_to_find(tmp_path, monkeypatch):
+    # a hook hands over only the YAML files the project's exclude leaves out: nothing to check, exit 0
+    (tmp_path / "pyproject.toml").write_text('[tool.speccheck]\nexclude = ["ci/*"]\n', encoding="utf-8")
+    (tmp_path / "ci").mkdir()
+    (tmp_path / "ci" / "workflow.yaml").write_text("on: push\n", encoding="utf-8")
+    monkeypatch.chdir(tmp_path)
+    code, _, err = cli("check", "ci/workflow.yaml")
+    assert code == 0 and "skipped" in err
 
 
 def test_jobs_gives_the_same_report_as_one_process(tmp_path):

@@ -63,10 +63,11 @@ def test_30_dbm_plus_minus_1_db_is_an_uneven_interval(tmp_path):
     assert p["low"] == pytest.approx(10 ** -0.1) and p["high"] == pytest.approx(10 ** 0.1)  # 29 and 31 dBm
 
 
-@pytest.mark.parametrize("args", [["check", ""], ["check", "-o", "", "x.yaml"]])
-def test_an_empty_path_is_a_usage_error(args):
+@pytest.mark.parametrize("args, says", [(["check", ""], "a file, a folder or '-'"),
+                                        (["check", "-o", "", "x.yaml"], "name the report file, or '-'")])
+def test_an_empty_path_is_a_usage_error(args, says):
     code, _, err = _run(*args)
-    assert code == 2 and "empty path" in err
+    assert code == 2 and "empty path" in err and says in err
 
 
 def test_dash_o_dash_is_standard_output(tmp_path, monkeypatch):

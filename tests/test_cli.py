@@ -139,7 +139,9 @@ def test_review_says_what_is_consistent_impossible_and_implied():
     code, out, _ = cli("check", "--review", str(EXAMPLES / "oscillator-consistent.yaml"))
     text = " ".join(out.split())
     # By hand: 2 × 530 kW / (π (0.1 cm)²) = 3.37e7 W/cm².
-    assert "Implied: spectral bandwidth 14.05 THz; time bandwidth product 0.3513; peak intensity 3.37" in text
+    # (its bandwidth is stated in nm: the same bandwidth in THz is not said again)
+    assert "Implied: time bandwidth product 0.3513; peak intensity 3.37" in text
+    assert "THz" not in text
     assert "No claim contradicts another." in text
 
 
@@ -295,3 +297,13 @@ def test_plain_human_output_does_not_import_rich():
     proc = subprocess.run([sys.executable, "-c", probe], capture_output=True, text=True, timeout=300,
                           env=dict(os.environ, PYTHONPATH=str(ROOT)))
     assert proc.stdout.split() == ["False", "True"] * 3 + ["True", "True"], proc.stderr
+
+
+def test_review_says_the_bandwidth_once_in_the_form_the_sheet_states_it():
+    # the pump-probe laser states its bandwidth in nm: the review's implied bandwidth is in nm, only
+    # where it changes (the harmonic's 10.61 nm: 30 nm × √... of the doubled pulse), never again in THz
+    code, out, _ = cli("check", "--review", str(EXAMPLES / "amplifier-pump-probe-path.yaml"))
+    implied = [line for line in out.splitlines() if line.strip().startswith("Implied:")]
+    bandwidth = [line for line in implied if "spectral bandwidth" in line]
+    assert len(bandwidth) == 1 and "nm at 'pump_lens'" in bandwidth[0] and "THz" not in bandwidth[0]
+    assert "30 nm" not in bandwidth[0]  # the laser's own 30 nm, carried unchanged, is not news

@@ -26,8 +26,21 @@ HEADLINE = ("pulse_energy", "average_power", "repetition_rate", "pulse_duration"
 MAX_NAME = 18  # a column's name in the table, shortened beyond this
 
 
+_BANDWIDTHS = ("spectral_bandwidth", "spectral_bandwidth_wavelength")  # one number in two forms
+
+
 def _phrase(quantity: str) -> str:
+    if quantity in _BANDWIDTHS:
+        return "spectral bandwidth"
     return quantity.replace("_", " ").replace("m2", "M²")
+
+
+def _bandwidth_form(result: FileResult, columns: list) -> str:
+    """The bandwidth's form for the implied line: in wavelength where the laser states it so, else in
+    frequency (one line, not the same bandwidth twice)."""
+    laser = result.sheet.get(columns[0][0], {}) if columns else {}
+    cell = laser.get("spectral_bandwidth_wavelength")
+    return "spectral_bandwidth_wavelength" if cell is not None and cell.status != "derived" else "spectral_bandwidth"
 
 
 def _at(f) -> str:
@@ -104,12 +117,20 @@ def write(results: list[FileResult], out, options) -> None:
             for f in errors:
                 console.print(Text(f"    {_at(f)}: " if f.line or f.origin else "    ") + Text(f.message))
         implied = []
+        bandwidth = _bandwidth_form(result, columns)
         for q in HEADLINE:
             if table and q in points.QUANTITIES:
                 continue  # in the table
+            if q in _BANDWIDTHS and q != bandwidth:
+                continue  # the bandwidth once, in the form the sheet states it
             values = [(column, kind, result.sheet[column][q]) for column, kind in columns
                       if q in result.sheet[column] and result.sheet[column][q].status == "derived"]
             values = [(column, kind, c) for column, kind, c in values if c.value is not None or c.low or c.high]
+            stated = result.sheet[columns[0][0]].get(q) if columns else None
+            if stated is not None and stated.status == "stated" and stated.value:
+                # what the laser states, carried unchanged to a later column, is not news
+                values = [(column, kind, c) for column, kind, c in values
+                          if c.value is None or abs(c.value - stated.value) > 1e-9 * abs(stated.value)]
             if values:
                 implied.append(f"{_phrase(q)} " + ", ".join(_implied(units, c) + _where(column, kind, columns)
                                                            for column, kind, c in values))

@@ -32,9 +32,14 @@ ConfigChoice = Union[None, bool, str, "os.PathLike[str]"]
 Settings = Union[Mapping[str, Any], Iterable[Union[tuple[str, Any], str]], None]
 """What ``--set`` takes: ``{"laser.pulse_energy": "1 mJ"}``, pairs, or ``"INPUT=VALUE"`` texts."""
 
-FINDING_KEYS = ("file", "rule", "severity", "message", "line", "column", "quantities", "suspect", "cause")
-CELL_KEYS = ("file", "column", "quantity", "status", "value", "low", "high", "unit", "display_unit", "stated",
+# ``column`` of a finding is the character column of its place in the file; ``sheet_column`` of a cell or a
+# remedy is the column of the sheet it belongs to (the laser, an operating point, a stage)
+FINDING_KEYS = ("file", "rule", "severity", "message", "line", "column", "quantities", "suspect", "candidates",
+                "likely", "cause", "origin", "remedies")
+CELL_KEYS = ("file", "sheet_column", "quantity", "status", "value", "low", "high", "unit", "display_unit", "stated",
              "assumed", "set", "inherited")
+REMEDY_KEYS = ("file", "line", "rule", "input", "sheet_column", "parameter", "low", "high", "unit", "reachable",
+               "stated")
 
 
 @dataclass(frozen=True)
@@ -67,22 +72,34 @@ class Result:
 
     def to_records(self, kind: str = "findings") -> list[dict[str, Any]]:
         """Flat records for a table (``pandas.DataFrame(result.to_records())``): ``"findings"``, one
-        per finding (keys ``FINDING_KEYS``; ``quantities`` joined by ", "), or ``"cells"``, one per
-        cell of every sheet (keys ``CELL_KEYS``; numbers in SI, an unbounded side ±inf, an unknown
-        value None).  Every record has the same keys, and every value is a scalar."""
+        per finding (keys ``FINDING_KEYS``; ``quantities`` and ``candidates`` joined by ", ",
+        ``remedies`` the number of inputs whose range was computed, None where none were), ``"cells"``,
+        one per cell of every sheet (keys ``CELL_KEYS``), or ``"remedies"``, one per input of each
+        finding's remedies (keys ``REMEDY_KEYS``: the range of that input that meets the finding's
+        target); numbers in SI, an unbounded side ±inf, an unknown value None.  Every record of a kind
+        has the same keys, and every value is a scalar."""
         if kind == "findings":
             return [{"file": r.path, "rule": f.rule, "severity": f.severity, "message": f.message,
                      "line": f.line, "column": f.column, "quantities": ", ".join(f.quantities),
-                     "suspect": f.suspect, "cause": f.cause} for r in self.files for f in r.findings]
+                     "suspect": f.suspect, "candidates": ", ".join(f.candidates), "likely": f.likely,
+                     "cause": f.cause, "origin": f.origin,
+                     "remedies": None if f.remedies is None else len(f.remedies)}
+                    for r in self.files for f in r.findings]
         if kind == "cells":
-            return [{"file": r.path, "column": column, "quantity": q, "status": c.status, "value": c.value,
+            return [{"file": r.path, "sheet_column": column, "quantity": q, "status": c.status, "value": c.value,
                      "low": -math.inf if c.low is None else c.low, "high": math.inf if c.high is None else c.high,
                      "unit": c.unit, "display_unit": c.display_unit,
                      "stated": c.text if c.text and c.status != "derived" else None, "assumed": c.assumed,
                      "set": c.overridden, "inherited": c.inherited} for r in self.files
                     for column, cells in r.sheet.items()
                     for q, c in cells.items()]
-        raise ValueError(f"to_records: kind is 'findings' or 'cells', not {kind!r}")
+        if kind == "remedies":
+            return [{"file": r.path, "line": f.line, "rule": f.rule, "input": x.input, "sheet_column": x.column,
+                     "parameter": x.parameter, "low": -math.inf if x.low is None else x.low,
+                     "high": math.inf if x.high is None else x.high, "unit": x.unit, "reachable": x.reachable,
+                     "stated": x.stated}
+                    for r in self.files for f in r.findings for x in (f.remedies or ())]
+        raise ValueError(f"to_records: kind is 'findings', 'cells' or 'remedies', not {kind!r}")
 
     def _repr_html_(self) -> str:
         """A notebook's view: the counts, then each file's findings as a table (all text escaped)."""

@@ -146,18 +146,26 @@ def test_check_text_reads_measured_data_under_base(specs):
 
 
 def test_records_are_flat_with_the_same_keys(specs):
+    shutil.copy(EXAMPLES / "proposal-focus-path.yaml", specs / "proposal-focus-path.yaml")  # targets with remedies
     result = speccheck.check(".", config=False)
-    for kind, keys in (("findings", api.FINDING_KEYS), ("cells", api.CELL_KEYS)):
+    for kind, keys in (("findings", api.FINDING_KEYS), ("cells", api.CELL_KEYS), ("remedies", api.REMEDY_KEYS)):
         records = result.to_records(kind)
         assert records and all(tuple(r) == keys for r in records)
         assert all(v is None or isinstance(v, (str, int, float, bool)) for r in records for v in r.values())
     assert len(result.to_records()) == len(result.findings)
     assert len(result.to_records("cells")) == sum(len(c) for r in result.files for c in r.sheet.values())
+    assert len(result.to_records("remedies")) == sum(len(f.remedies or ()) for f in result.findings)
+    # the records carry what the JSON carries: candidates of an ambiguous conflict, each remedy's range
+    doc = result.to_dict()
+    listed = [f for d in doc["files"] for f in d["findings"]]
+    assert [r["candidates"] for r in result.to_records()] == [", ".join(f.get("candidates", [])) for f in listed]
+    assert [r["remedies"] for r in result.to_records()] == [len(f["remedies"]) if "remedies" in f else None
+                                                            for f in listed]
     with pytest.raises(ValueError):
         result.to_records("rows")
     # an operating point's value taken from the laser block says so, as in JSON and CSV
     points = speccheck.check_text((EXAMPLES / "maker-sheet-operating-points.yaml").read_text(encoding="utf-8"))
-    by_place = {(r["column"], r["quantity"]): r for r in points.to_records("cells")}
+    by_place = {(r["sheet_column"], r["quantity"]): r for r in points.to_records("cells")}
     assert by_place[("50 kHz", "pulse_duration")]["inherited"] and not by_place[("laser", "pulse_duration")]["inherited"]
 
 

@@ -1,5 +1,7 @@
 """Every rule of the core, each stated as a small spec and the (rule, line) it gives."""
 
+import math
+
 import pytest
 
 from speccheck.records.rules import RULES
@@ -206,6 +208,19 @@ def test_fewer_than_one_cycle_is_a_warning(check):
 def test_durations_outside_the_ultrafast_range_are_a_note(check, duration):
     result = check(f"laser:\n  pulse_duration: {duration}\n")
     assert [(f.rule, f.severity) for f in result.findings] == [("outside-ultrafast-range", "note")]
+
+
+def test_a_derived_number_beyond_a_float_is_said_not_left_out_silently(check):
+    # E/τ/(πw²/2) here is about 1e376 W/m², beyond a double (1.8e308); the sheet cannot show it and says so
+    rule = RULES["beyond-float-range"]
+    result = check("laser:\n  " + rule.failing.replace("\n", "\n  ") + "\n  wavelength: 800 nm\n")
+    (finding,) = [f for f in result.findings if f.rule == "beyond-float-range"]
+    assert "laser.peak_intensity" in finding.message and "above about 1e308" in finding.message
+    assert "peak_intensity" not in result.sheet["laser"]
+    calm = check("laser:\n  " + rule.passing.replace("\n", "\n  ") + "\n  wavelength: 800 nm\n")
+    assert "beyond-float-range" not in [f.rule for f in calm.findings]
+    assert calm.sheet["laser"]["peak_intensity"].value == pytest.approx(
+        2 * 0.9394 * 1e-3 / 35e-15 / (math.pi * 0.005**2), rel=1e-3)  # 2 P_pk / (π w²), by hand
 
 
 def test_m2_below_one_is_impossible(check):

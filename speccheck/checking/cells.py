@@ -42,7 +42,8 @@ def build(col) -> dict[str, Cell]:
             else:
                 value = centre(low, high)
             if value is None and low is None and high is None:
-                continue  # beyond what a float holds: nothing to show
+                _beyond(col, q, y_lo, y_hi)  # beyond what a float holds: nothing to show, and said
+                continue
             quantity = BY_NAME[q]
             ref = value if value is not None else (low if low is not None else high)
             out[q] = Cell("derived", low, high, value, quantity.si_unit, choose_unit(units, ref, quantity.display_unit))
@@ -93,3 +94,13 @@ def _typical_of(log_value, low, high):
         return centre(low, high)
     value = min(max(exp(log_value) or math.inf, low or 0.0), high or math.inf)
     return value if math.isfinite(value) else centre(low, high)
+
+
+def _beyond(col, q: str, y_lo: float, y_hi: float) -> None:
+    """A derived quantity the column determines, but whose every bound is beyond a float: said once."""
+    ends = [y for y in (y_lo, y_hi) if math.isfinite(y)]
+    side = "above about 1e308" if ends and ends[0] > 0 else "below about 1e-308"
+    col.report.add("beyond-float-range", f"{col.name}.{q} follows from the stated values but is {side} in SI "
+                   f"units ({BY_NAME[q].si_unit}), beyond what speccheck can compute, so the sheet leaves it out; "
+                   "the numbers it comes from are far outside an experiment's (a unit or exponent slip?)",
+                   col.at(q), quantities=(col.dotted(q),))

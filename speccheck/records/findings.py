@@ -39,7 +39,10 @@ class Finding:
             raise ValueError(f"unknown severity {self.severity!r}")
 
     def sort_key(self) -> tuple:
-        return (self.path, self.line or 0, self.column or 0, self.rule, self.message)
+        """Findings are listed by place; at one place in the order the check made them (a stable sort:
+        the laser block, then each operating point in the sheet's order, then the path), so a target
+        judged at every operating point is said point by point, as the sheet's columns run."""
+        return (self.path, self.line or 0, self.column or 0)
 
 
 @dataclass(frozen=True)

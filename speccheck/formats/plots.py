@@ -83,9 +83,15 @@ def label(text: str) -> str:
     return text if len(text) <= MAX_LABEL else text[: MAX_LABEL - 1] + "…"
 
 
-def _figure(width: float, height: float, ncols: int = 1) -> tuple[Figure, list]:
-    fig = Figure(figsize=(width, height), layout="constrained")
+def _figure(width: float, height: float, ncols: int = 1, right: float = 0.2) -> tuple[Figure, list]:
+    """A figure with its axes placed by fixed margins in inches (left for the tick labels and the
+    y label, bottom for the x label, top for a title; ``right`` wider for a second y axis).  A
+    solver for the layout (matplotlib's constrained layout) took half of each figure's time (about
+    170 ms against 80 ms for a three-curve plot), and the labels here are short and known."""
+    fig = Figure(figsize=(width, height))
     FigureCanvasAgg(fig)
+    fig.subplots_adjust(left=0.72 / width, right=1.0 - right / width, bottom=0.5 / height,
+                        top=1.0 - 0.42 / height, wspace=0.95 / (width / ncols))
     axes = fig.subplots(1, ncols, squeeze=False)[0]
     return fig, list(axes)
 
@@ -171,7 +177,7 @@ def field(units, profiles) -> str:
     """The pulse's field at each branch end (``records.findings.FieldProfile``): its temporal
     intensity, and its spectrum with the spectral phase on a second axis."""
     with matplotlib.rc_context(_RC):
-        fig, (ax_t, ax_s) = _figure(6.4, 3.0, 2)
+        fig, (ax_t, ax_s) = _figure(7.2, 3.0, 2, right=0.7)
         widest = max(max(abs(p.time[0]), abs(p.time[-1])) for p in profiles)
         tu, tf = _unit(units, widest, "fs")
         lu, lf = _unit(units, profiles[0].wavelength[len(profiles[0].wavelength) // 2], "nm")

@@ -194,3 +194,17 @@ def test_a0_by_polarization_against_the_published_rule(units):
     assert lin == pytest.approx(0.855 * 0.8, rel=0.01)
     # circular light of the same intensity: each component carries half of it
     assert hazards.vector_potential(1e18 * 1e4, 0.8e-6, k, "circular") == pytest.approx(lin / math.sqrt(2))
+
+
+def test_the_b_integral_message_names_the_effective_length_where_the_beam_converges_in_the_plate(check):
+    # a plate just before a focus: the beam narrows inside it, so ∫I dz is the entrance intensity times a
+    # Kerr length longer than the plate (tests/test_gaussian_beam.py checks that length by quadrature);
+    # a collimated plate says only the formula
+    r = check(LASER + "  - {name: lens, kind: lens, focal_length: 60 mm}\n"
+                      "  - {name: gap, kind: propagation, distance: 30 mm}\n"
+                      "  - {name: plate, kind: material, material: fused_silica, thickness: 20 mm}\n")
+    (finding,) = [f for f in r.findings if f.rule == "b-integral"]
+    assert "n2 I L_eff" in finding.message and "for the 20 mm plate" in finding.message
+    collimated = check(LASER + "  - {name: rod, kind: material, material: n_bk7, thickness: 50 mm}\n")
+    (plain,) = [f for f in collimated.findings if f.rule == "b-integral"]
+    assert "B = (2π/λ) Σ n2 ∫ I dz)" in plain.message and "L_eff" not in plain.message

@@ -213,9 +213,17 @@ def self_focusing(walk, v: Visit) -> None:
         total = before + b
         cells["b_integral_total"] = Cell("derived", total, total, total, "1", "1")
         if total > walk.b_limit >= before:
+            thickness = params["thickness"][1]
+            # the peak intensity's integral through the plate: its entrance value times the plate's length,
+            # or times a Kerr length where the beam narrows or widens inside it
+            formula = "B = (2π/λ) Σ n2 ∫ I dz" + (
+                "" if abs(length / thickness - 1.0) < 1e-3 else
+                f", here n2 I L_eff with the entrance intensity and an effective length "
+                f"{walk.show('beam_radius', length, 'mm')} for the {walk.show('beam_radius', thickness, 'mm')} "
+                "plate, as the beam's size changes inside it")
             walk.report.add("b-integral",
                             f"{name}: the accumulated B-integral reaches {total:.3g} rad here ({b:.3g} rad in "
-                            f"this stage; B = (2π/λ) Σ n2 I L), above the limit of {walk.b_limit:g} rad",
+                            f"this stage; {formula}), above the limit of {walk.b_limit:g} rad",
                             at, key=True, quantities=(f"{name}.b_integral",))
     elif before:
         cells["b_integral_total"] = Cell("derived", before, before, before, "1", "1")

@@ -223,7 +223,9 @@ _RULES = (
          "P_cr of air is a few GW near 800 nm (n2 ≈ 3-4e-23 m²/W): long air paths at higher peak power "
          "filament; a vacuum or helium path avoids it."),
     Rule("b-integral", "warning", "an accumulated B-integral above the limit",
-         "B = (2π/λ) Σ n2 I_peak L over the material stages is the nonlinear phase the pulse gathers; "
+         "B = (2π/λ) Σ n2 ∫ I_peak dz over the material stages is the nonlinear phase the pulse gathers (the "
+         "entrance intensity times the plate's length, or times a Kerr length where the beam's size changes "
+         "inside it); "
          "amplifier designs keep it below a few radians (common practice; `defaults: {b_integral_limit: 3}`)."),
     Rule("optic-damage", "error", "a peak fluence above an optic's rated damage threshold",
          "A stage's `damage_threshold: {fluence, pulse_duration, wavelength}` is the optic's rated value; "

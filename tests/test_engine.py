@@ -114,7 +114,7 @@ def test_the_generated_steps_give_the_loops_numbers_bit_for_bit_on_the_relation_
     import random
 
     from speccheck.checking.column import NAMES as COLUMN_NAMES
-    from speccheck.checking.engine import reference_propagate
+    from speccheck.checking.engine import reference_evaluate, reference_propagate
     from speccheck.physics.relations import RELATIONS
 
     rng = random.Random(7)
@@ -128,6 +128,9 @@ def test_the_generated_steps_give_the_loops_numbers_bit_for_bit_on_the_relation_
                 fast, slow = propagate(net, stated), reference_propagate(net, stated)
                 assert _same_state(fast, slow)
                 conflicts += not slow.ok
+                known = {i: lo for i, (lo, hi) in stated.items() if math.isfinite(lo)}
+                # the point values too, in the same order (the first relation to reach a quantity wins)
+                assert list(evaluate(net, known).items()) == list(reference_evaluate(net, known).items())
     assert conflicts > 100  # both outcomes were exercised
 
 
@@ -137,6 +140,7 @@ def test_the_generated_steps_agree_on_random_tables_with_any_exponents():
     from speccheck.checking.engine import reference_propagate
 
     from speccheck.checking.column import NAMES as COLUMN_NAMES
+    from speccheck.checking.engine import reference_evaluate
 
     rng = random.Random(11)
     names = COLUMN_NAMES[:9]
@@ -151,6 +155,8 @@ def test_the_generated_steps_agree_on_random_tables_with_any_exponents():
         for _ in range(40):
             stated = _random_stated(rng, len(names))
             assert _same_state(propagate(net, stated), reference_propagate(net, stated))
+            known = {i: lo for i, (lo, hi) in stated.items() if math.isfinite(lo)}
+            assert list(evaluate(net, known).items()) == list(reference_evaluate(net, known).items())
 
 
 def test_a_network_changes_to_the_generated_steps_after_enough_uses():

@@ -40,9 +40,10 @@ class Network:
     # per relation, per unknown j: (j, e_j, ((k, e_k) for the other terms))
     solved: tuple = ()
     in_relations: tuple = ()  # var -> bit mask of the relations it takes part in
-    # per relation, its narrowing step as straight-line code (``_generate``), made once the network has
-    # been used often enough to repay compiling it: [uses, steps or None]
-    generated: list = field(default_factory=lambda: [0, None], compare=False, repr=False)
+    # per relation, its narrowing step and its evaluation step as straight-line code (``_generate``),
+    # made once the network has been used often enough to repay compiling them:
+    # [uses, narrowing steps or None, evaluation steps or None]
+    generated: list = field(default_factory=lambda: [0, None, None], compare=False, repr=False)
 
 
 def compile_network(names: tuple[str, ...], context: Context,
@@ -76,8 +77,10 @@ def _generated_steps(net: Network) -> tuple:
     code = _CODE.get(structure)
     if code is None:
         code = _CODE[structure] = _generate(net.solved, net.touching, tuple(t for _, t, _ in net.relations))
-    namespace = {"NINF": -math.inf, "INF": math.inf} | {f"K{r}": ln_k for r, (_, _, ln_k) in enumerate(net.relations)}
+    namespace = {"NINF": -math.inf, "INF": math.inf, "isfinite": math.isfinite} | {
+        f"K{r}": ln_k for r, (_, _, ln_k) in enumerate(net.relations)}
     exec(code, namespace)
+    net.generated[2] = tuple(namespace[f"evaluate_{r}"] for r in range(len(net.relations)))
     return tuple(namespace[f"step_{r}"] for r in range(len(net.relations)))
 
 
@@ -140,7 +143,27 @@ def _generate(solved, touching, all_terms):
                     "                append(o)"]
         out.append("    return None")
         source.append("\n".join(out))
+        source.append(_evaluation_step(r, terms, touching))
     return compile("\n\n".join(source), "<relation table>", "exec")
+
+
+def _evaluation_step(r: int, terms, touching) -> str:
+    """``reference_evaluate``'s work on relation r as straight-line code: with exactly one of its
+    quantities unknown, that one is solved for (the others' sum from 0.0, in the terms' order)."""
+    out = [f"def evaluate_{r}(values, queued, append):"]
+    missing = " + ".join(f"({j} not in values)" for j, _ in terms)
+    out += [f"    if {missing} != 1:", "        return"]
+    for n, (j, ej) in enumerate(terms):
+        rest = " + ".join(["0.0"] + [_times(ek, f"values[{k}]") for k, ek in terms if k != j])
+        out += [f"    {'if' if n == 0 else 'elif'} {j} not in values:",
+                f"        rest = {rest}",
+                "        if isfinite(rest):",
+                f"            values[{j}] = {_over(f'K{r} - rest', ej)}",
+                f"            for o in {touching[j]!r}:",
+                "                if not queued[o]:",
+                "                    queued[o] = True",
+                "                    append(o)"]
+    return "\n".join(out)
 
 
 def _times(e: float, term: str) -> str:
@@ -392,8 +415,27 @@ def evaluate(net: Network, known: dict) -> dict:
 
     ``known``: var index -> ln value.  Where values are over-determined the first
     relation to reach a quantity wins; intervals (``propagate``) decide consistency,
-    this only gives the nominal number to show for each derived cell.
+    this only gives the nominal number to show for each derived cell.  Each relation's step is
+    generated code once the network has been used often (``propagate`` makes them), the same as
+    ``reference_evaluate`` bit for bit.
     """
+    steps = net.generated[2]
+    if steps is None:
+        return reference_evaluate(net, known)
+    values = dict(known)
+    queue = deque(range(len(steps)))
+    append, popleft = queue.append, queue.popleft
+    queued = [True] * len(steps)
+    while queue:
+        r = popleft()
+        queued[r] = False
+        steps[r](values, queued, append)
+    return values
+
+
+def reference_evaluate(net: Network, known: dict) -> dict:
+    """``evaluate`` as a loop over the compiled terms (the reference its generated steps are tested
+    against); the others' sum is taken from 0.0 left to right, as the generated code does."""
     values = dict(known)
     queue = deque(range(len(net.relations)))
     queued = [True] * len(net.relations)
@@ -411,7 +453,10 @@ def evaluate(net: Network, known: dict) -> dict:
             if unknown is None:
                 continue
             j, ej = unknown
-            rest = sum(e * values[k] for k, e in terms if k != j)
+            rest = 0.0
+            for k, e in terms:
+                if k != j:
+                    rest = rest + e * values[k]
             if math.isfinite(rest):
                 values[j] = (ln_k - rest) / ej
                 for other in net.touching[j]:
@@ -419,5 +464,3 @@ def evaluate(net: Network, known: dict) -> dict:
                         queued[other] = True
                         queue.append(other)
     return values
-
-

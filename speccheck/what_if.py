@@ -76,8 +76,10 @@ def solve(args, stdout, stderr, stdin, config) -> int:
         def num(x):
             return None if x is None or not math.isfinite(x) else float("%.15g" % x)
 
+        searched = [num(x) for x in found.searched] if found.searched else None
         text = json.dumps({"input": found.input, "low": num(found.low), "high": num(found.high),
-                           "unit": found.unit}, ensure_ascii=False) + "\n"
+                           "unit": found.unit, "reachable": found.reachable, "searched": searched},
+                          ensure_ascii=False) + "\n"
     else:
         unit = found.display_unit or found.unit
 
@@ -86,13 +88,15 @@ def solve(args, stdout, stderr, stdin, config) -> int:
 
         now = f" (now {v(found.value)})" if found.value is not None else ""
         settings = "".join(f"with --set {s}: " for s in result.settings)
+        searched = f"{v(found.searched[0])} … {v(found.searched[1])}" if found.searched else ""
         if not found.reachable:
-            text = (f"{shown}: {settings}no value of {found.input} meets every target without an error{now}"
-                    + (f"; {found.why}" if found.why else "") + "\n")
+            text = (f"{shown}: {settings}no value of {found.input}"
+                    + (f" in the range searched ({searched})" if searched else "")
+                    + f" meets every target without an error{now}" + (f"; {found.why}" if found.why else "") + "\n")
         else:
-            span = (f"{v(found.low)} … {v(found.high)}" if found.low is not None and found.high is not None else
-                    f"≥ {v(found.low)}" if found.low is not None else f"≤ {v(found.high)}" if found.high is not None
-                    else "any value searched")
+            span = (f"at {v(found.low)} … {v(found.high)}" if found.low is not None and found.high is not None else
+                    f"at ≥ {v(found.low)}" if found.low is not None else f"at ≤ {v(found.high)}"
+                    if found.high is not None else f"at every value searched ({searched})")
             text = f"{shown}: {settings}every target is met and no error is reported for {found.input} {span}{now}\n"
     if not files.write_stdout(stdout, stderr, lambda out: out.write(text), args.format):
         return 2

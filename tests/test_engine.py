@@ -102,9 +102,9 @@ def _same_state(a, b):
 
 
 def _generated(net):
-    from speccheck.checking import engine
+    from speccheck.checking import engine_code
 
-    net.generated[1] = engine._generated_steps(net)
+    net.generated[1] = engine_code.generated_steps(net)
     return net
 
 

@@ -87,6 +87,21 @@ def test_a_new_rate_keeps_the_energy_and_moves_the_power(spec):
     assert laser["average_power"]["value"] == pytest.approx(20e-6 * 200e3)
 
 
+@pytest.mark.parametrize("setting", ["laser.m2=1.2", "laser.average_power=20 W", "laser.average_power=25 W",
+                                     "laser.repetition_rate=1 MHz", "laser.pulse_duration=300 fs"])
+def test_a_setting_never_hides_a_contradiction_the_file_already_has(setting):
+    # the sheet's 20 nJ contradicts its 20 W at 1 MHz; a what-if of another input, of an input to the value it
+    # has, or of the power to another value, must leave that error standing (before, the power "followed")
+    sheet = str(ROOT / "example_specs" / "maker-sheet-one-wrong.yaml")
+    code, out, _ = cli("--format", "json", "--set", setting, sheet)
+    findings = json.loads(out)["files"][0]["findings"]
+    assert code == 1 and any(f["rule"] == "relation-conflict" and f["suspect"] == "laser.pulse_energy"
+                             for f in findings), setting
+    # setting the wrong value right clears it, and nothing else moves
+    code, out, err = cli("--set", "laser.pulse_energy=20 uJ", "--no-sheet", sheet)
+    assert code == 0 and "follows)" not in out and " follow)" not in out
+
+
 def test_a_finding_at_a_set_value_points_to_the_command_line(spec):
     code, doc = as_json("--set", "mirror.transmission=120%", str(spec))
     [f] = [f for f in doc["files"][0]["findings"] if f.get("origin")]

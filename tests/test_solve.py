@@ -5,6 +5,7 @@ from __future__ import annotations
 
 import io
 import json
+from pathlib import Path
 import math
 import textwrap
 
@@ -69,7 +70,8 @@ def test_solve_on_a_path_agrees_with_a_brute_force_scan_and_the_closed_form(spec
     code, out, err = solve(str(spec), "--for", "lens.focal_length", "--format", "json")
     assert code == 0 and not err
     found = json.loads(out)
-    assert list(found) == ["input", "low", "high", "unit"]
+    assert list(found) == ["input", "low", "high", "unit", "reachable", "searched"] and found["reachable"]
+    assert found["searched"][0] < found["low"] < found["high"] < found["searched"][1]
     assert found["input"] == "lens.focal_length" and found["unit"] == "m"
     # I and F ∝ 1/w0'² (about 1/f²): I ≥ I0/2 for f ≤ HIGH, F ≤ 2F0 for f ≥ LOW
     assert found["low"] == pytest.approx(LOW, rel=1e-5)
@@ -86,7 +88,7 @@ def test_solve_on_a_path_agrees_with_a_brute_force_scan_and_the_closed_form(spec
 
 def test_solve_in_words_and_with_a_set_value(spec):
     code, out, _ = solve(str(spec), "--for", "lens.focal_length")
-    words = f"every target is met and no error is reported for lens.focal_length {LOW * 1e3:.1f} mm … {HIGH * 1e3:.1f} mm"
+    words = f"every target is met and no error is reported for lens.focal_length at {LOW * 1e3:.1f} mm … {HIGH * 1e3:.1f} mm"
     assert code == 0 and words in out and "(now 200 mm)" in out
     # at half the energy the intensity needs f ≤ 200 mm: the range narrows to 141 … 200 mm
     code, out, _ = solve(str(spec), "--for", "lens.focal_length", "--set", "laser.pulse_energy=50 µJ",
@@ -100,9 +102,25 @@ def test_an_empty_range_exits_1(tmp_path):
                     encoding="utf-8")
     # I ≥ 2 I0 needs f ≤ 141 mm, F ≤ F0 needs f ≥ 200 mm: no focal length does both
     code, out, _ = solve(str(path), "--for", "lens.focal_length", "--format", "json")
-    assert code == 1 and json.loads(out) == {"input": "lens.focal_length", "low": None, "high": None, "unit": "m"}
+    found = json.loads(out)
+    assert code == 1 and {k: found[k] for k in ("input", "low", "high", "unit", "reachable")} == {
+        "input": "lens.focal_length", "low": None, "high": None, "unit": "m", "reachable": False}
     code, out, _ = solve(str(path), "--for", "lens.focal_length")
-    assert code == 1 and "no value of lens.focal_length meets every target without an error" in out
+    assert code == 1 and "no value of lens.focal_length in the range searched (" in out
+    assert "meets every target without an error" in out
+
+
+def test_solve_agrees_with_check_on_a_value_the_spec_contradicts():
+    # 20 nJ against 20 W at 1 MHz: check reports it; solve must not find that any energy will do because
+    # the power would follow it.  The search (20 nJ / 30 … × 30) never reaches the consistent 20 µJ.
+    sheet = str(Path(__file__).resolve().parent.parent / "example_specs" / "maker-sheet-one-wrong.yaml")
+    for name in ("laser.pulse_energy", "laser.average_power", "laser.repetition_rate"):
+        code, out, _ = solve(sheet, "--for", name, "--format", "json")
+        assert code == 1 and json.loads(out)["reachable"] is False, name
+    # and with the energy set where the rest puts it, the range holds the value now
+    code, out, _ = solve(sheet, "--for", "laser.pulse_energy", "--set", "laser.pulse_energy=20 uJ", "--format", "json")
+    found = json.loads(out)
+    assert code == 0 and (found["low"] or 0) <= 20e-6 <= (found["high"] or 1)
 
 
 @pytest.mark.parametrize("argv, words", [

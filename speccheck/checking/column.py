@@ -30,6 +30,26 @@ NAMES = tuple(q.name for q in QUANTITIES)
 KEYS = set(NAMES) | set(ALIASES)  # spec keys of a block that hold quantities
 
 
+class Carried:
+    """A value carried along the path into a stage's column: a ``Stated`` whose text (for messages) is
+    written only when a message asks for it (most columns say nothing about most of their values)."""
+
+    __slots__ = ("quantity", "low", "high", "typical", "unit", "_units", "_text")
+
+    def __init__(self, quantity: str, low: float, high: float, typical: float | None, unit: str, units) -> None:
+        self.quantity, self.low, self.high, self.typical, self.unit = quantity, low, high, typical, unit
+        self._units, self._text = units, None
+
+    @property
+    def text(self) -> str:
+        if self._text is None:
+            ref = self.typical or (self.low if self.low > 0 else self.high)
+            shown = format_quantity(self._units, ref, choose_unit(self._units, ref, self.unit)) if ref and \
+                math.isfinite(ref) else ""
+            self._text = f"{shown} (from the path)"
+        return self._text
+
+
 class BlockCheck:
     """Checks one block of quantities (the laser, later each stage)."""
 

@@ -258,6 +258,14 @@ class Checker:
                        f"{check.show(limit.quantity, bound, limit.unit)} (laser.{key}: {limit.text}, {line})",
                        ("operating_points", i, key), quantities=(f"{name}.{key}", f"laser.{key}"))
 
+    def tolerances_of(self, data: dict) -> Tolerances:
+        """The spec's tolerances without reporting what is wrong in them (the check itself reports it)."""
+        class _Quiet:
+            def add(self, *args, **kwargs) -> None:
+                pass
+
+        return self._tolerance(data if isinstance(data, dict) else {}, _Quiet())  # type: ignore[arg-type]
+
     def _tolerance(self, data: dict, report: Report) -> Tolerances:
         """The tolerances of this spec: its ``defaults``, then the configuration's, then the table."""
         defaults = data.get("defaults") if isinstance(data.get("defaults"), dict) else {}

@@ -11,8 +11,11 @@ its place (``loader.Document.mark_setting``) so that a finding there points to t
 line.  What a laser quantity determines moves with it: after the new value, the other stated
 typical values are taken in the order of the quantities the path carries (wavelength, rate,
 energy, power, duration, …), and each one the values before it already determine through
-the relation table is dropped, to be derived again.  At a fixed rate, a new pulse energy
-therefore moves the average power.  Bounds (``<= 20 W``) are limits, never dropped.
+the relation table, and would not determine without the new value, is dropped, to be derived
+again.  At a fixed rate, a new pulse energy therefore moves the average power.  Bounds
+(``<= 20 W``) are limits, never dropped.  A setting never hides what the file already gets
+wrong: set to the value it has, it moves nothing, and a value the file's own values contradict
+stays stated (``moved``).
 """
 
 from __future__ import annotations
@@ -209,15 +212,49 @@ def merged(data: dict, index: int) -> dict:
     return {**block, **{k: v for k, v in point.items() if k != "name"}}
 
 
-def moved(checker, block: dict, key: str) -> tuple[str, ...]:
-    """The stated keys of ``block`` that the value of ``key`` and the values before them (in the
-    order above) determine: the ones that move with it."""
+def moved(checker, block: dict, key: str, original: dict | None = None, tolerances=None) -> tuple[str, ...]:
+    """The stated keys of ``block`` that the value of ``key`` moves: each one that ``key`` and the values
+    before it (in the order above) determine, and that they would not determine without ``key`` (a
+    value the rest fixes on its own, the rate with the power and the energy, stays where it is).
+
+    A what-if never hides a disagreement the spec already has: with ``original`` (the block as the
+    file has it, read with ``tolerances``), nothing moves when ``key`` keeps its value, and a value
+    the file's own stated values contradict (the stated values of each contradiction the engine
+    finds) stays stated, so the check still reports it."""
     if not isinstance(block, dict):
         return ()
     shape = block.get("pulse_shape") if block.get("pulse_shape") in PULSE_SHAPES else DEFAULT_SHAPE
     profile = block.get("beam_profile") if block.get("beam_profile") in BEAM_PROFILES else DEFAULT_PROFILE
     net = network_for(NAMES, checker.context(shape, profile))
-    typical: dict[str, tuple[str, float]] = {}
+    typical = _typical(checker, block)
+    if key not in typical:
+        return ()
+    kept: set[str] = set()
+    if isinstance(original, dict):
+        before = _typical(checker, original)
+        if key in before and math.isclose(before[key][1], typical[key][1], rel_tol=1e-12):
+            return ()  # the value it has already: the spec as it is
+        kept = _contradicted(checker, net, original, tolerances)
+    order = list(CARRIED) + [q for q in NAMES if q not in CARRIED]
+    rest = sorted((k for k in typical if k != key), key=lambda k: order.index(typical[k][0]))
+    idx = net.index
+    without = {idx[q]: math.log(v) for q, v in defaults_for({q for q, _ in typical.values()}).items()}
+    known = dict(without)
+    out = []
+    for k in [key] + rest:
+        q, v = typical[k]
+        if k != key and k not in kept and idx[q] in evaluate(net, known) and idx[q] not in evaluate(net, without):
+            out.append(k)
+            continue
+        known[idx[q]] = math.log(v)
+        if k != key:
+            without[idx[q]] = math.log(v)
+    return tuple(out)
+
+
+def _typical(checker, block: dict) -> dict[str, tuple[str, float]]:
+    """The stated keys of a block with a typical value: key -> (quantity, typical, SI)."""
+    out: dict[str, tuple[str, float]] = {}
     for k, raw in block.items():
         if k in KEYS and k not in CATEGORICAL:
             try:
@@ -225,21 +262,43 @@ def moved(checker, block: dict, key: str) -> tuple[str, ...]:
             except ValueProblem:
                 continue
             if s.typical is not None and s.typical > 0.0:
-                typical[k] = (s.quantity, s.typical)
-    if key not in typical:
-        return ()
-    order = list(CARRIED) + [q for q in NAMES if q not in CARRIED]
-    rest = sorted((k for k in typical if k != key), key=lambda k: order.index(typical[k][0]))
+                out[k] = (s.quantity, s.typical)
+    return out
+
+
+def _contradicted(checker, net, block: dict, tolerances) -> set[str]:
+    """The keys of the stated values in each contradiction among a block's own values (with their
+    tolerances), as the engine finds them: the first contradiction's values, then again without them."""
+    from speccheck.checking.engine import propagate
+    from speccheck.checking.logspace import ln
+    from speccheck.reading.values import Tolerances
+
+    tolerances = tolerances if tolerances is not None else Tolerances()
     idx = net.index
-    known = {idx[q]: math.log(v) for q, v in defaults_for({q for q, _ in typical.values()}).items()}
-    out = []
-    for k in [key] + rest:
-        q, v = typical[k]
-        if k != key and idx[q] in evaluate(net, known):
-            out.append(k)
-            continue
-        known[idx[q]] = math.log(v)
-    return tuple(out)
+    stated: dict[int, tuple[float, float]] = {}
+    keys: dict[int, str] = {}
+    for k, raw in block.items():
+        if k in KEYS and k not in CATEGORICAL:
+            try:
+                s = checker.values.parse(k, raw, tolerances)
+            except ValueProblem:
+                continue
+            if s.quantity in idx and idx[s.quantity] not in stated:
+                stated[idx[s.quantity]] = (ln(s.low), ln(s.high))
+                keys[idx[s.quantity]] = k
+    for q, value in defaults_for({net.names[i] for i in stated}).items():
+        stated.setdefault(idx[q], (math.log(value), math.log(value)))
+    out: set[str] = set()
+    for _ in range(len(stated)):
+        state = propagate(net, stated)
+        if state.ok:
+            break
+        support = state.conflict[1] & set(keys)
+        if not support:
+            break
+        out |= {keys[i] for i in support}
+        stated = {i: v for i, v in stated.items() if i not in support}
+    return out
 
 
 def apply(checker, doc, settings) -> list[str]:
@@ -253,7 +312,8 @@ def apply(checker, doc, settings) -> list[str]:
         inp = find(inputs(checker, doc.data), name)
         raw = read_value(checker, inp, text)
         data = replaced(doc.data, inp.at, raw)
-        follow = moved(checker, data.get("laser"), inp.parameter) if inp.column == "laser" else ()
+        follow = moved(checker, data.get("laser"), inp.parameter, doc.data.get("laser"),
+                       checker.tolerances_of(doc.data)) if inp.column == "laser" else ()
         doc.data = replaced(data, inp.at, raw, follow) if follow else data
         doc.mark_setting(inp.at, f"--set {name}={text}")
         applied.append(f"{name}={text}" + (f" ({', '.join('laser.' + k for k in follow)} "

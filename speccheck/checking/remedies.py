@@ -79,7 +79,10 @@ class Rechecks:
             placed = overrides.replaced(self.data, inp.at, raw)
             block = placed.get("laser") if inp.column == "laser" else overrides.merged(placed, inp.at[1]) \
                 if inp.at[0] == "operating_points" else None
-            self.moves[inp.name] = overrides.moved(self.c, block, inp.parameter) if block is not None else ()
+            original = self.data.get("laser") if inp.column == "laser" else overrides.merged(self.data, inp.at[1]) \
+                if inp.at[0] == "operating_points" else None
+            self.moves[inp.name] = overrides.moved(self.c, block, inp.parameter, original,
+                                                   self.c.tolerances_of(self.data)) if block is not None else ()
         return overrides.replaced(self.data, inp.at, raw, self.moves[inp.name])
 
     def run(self, inp: overrides.Input, x: float, point: int | None = None):

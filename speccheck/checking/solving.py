@@ -28,6 +28,7 @@ class Solution:
     display_unit: str
     reachable: bool
     why: str = ""  # when not reachable: what stands in the way
+    searched: tuple[float, float] | None = None  # the range of the input searched, SI, low to high
 
 
 def solve(checker, doc, name: str, result) -> Solution:
@@ -49,6 +50,7 @@ def solve(checker, doc, name: str, result) -> Solution:
         raise overrides.SettingProblem(f"{name} is {inp.value:g} {inp.dimension}: solve needs a value other than "
                                        "zero to start from; set one with --set")
     t0, lo, hi, step, to_x = domain(inp)
+    searched = tuple(sorted((to_x(lo), to_x(hi))))
     targets = {}
     for point in [None] + points:
         _, outcomes, _ = checker.rerun(doc, doc.data, point=point)
@@ -65,12 +67,12 @@ def solve(checker, doc, name: str, result) -> Solution:
 
     unknown = next((f.message for f in result.findings if f.rule == "target-unknown"), None)
     if unknown is not None:  # no value meets a target the numbers do not determine: say what would
-        return Solution(name, None, None, inp.dimension, inp.value, inp.display_unit, False, unknown)
+        return Solution(name, None, None, inp.dimension, inp.value, inp.display_unit, False, unknown, searched)
     found = seek.region(ok, t0, ok(t0), lo, hi, (-0.5, 0.5), step, BUDGET)
     if found is None or not found.reachable:
         errors = sorted({f.rule for f in result.findings if f.severity == "error"})
         why = f"at the value now the check reports {', '.join(errors)}" if errors else ""
-        return Solution(name, None, None, inp.dimension, inp.value, inp.display_unit, False, why)
+        return Solution(name, None, None, inp.dimension, inp.value, inp.display_unit, False, why, searched)
     low = to_x(found.low) if found.low is not None else (1.0 if inp.exact else None)
     high = to_x(found.high) if found.high is not None else (inp.highest if math.isfinite(inp.highest) else None)
     if inp.value < 0 and not inp.signed:  # searched in ln |x|: the ends change places
@@ -80,5 +82,5 @@ def solve(checker, doc, name: str, result) -> Solution:
         high = float(math.floor(high + 1e-9)) if high is not None else None
         if low is not None and high is not None and low > high:
             return Solution(name, None, None, inp.dimension, inp.value, inp.display_unit, False,
-                            "no whole number lies in the range")
-    return Solution(name, low, high, inp.dimension, inp.value, inp.display_unit, True)
+                            "no whole number lies in the range", searched)
+    return Solution(name, low, high, inp.dimension, inp.value, inp.display_unit, True, searched=searched)

@@ -17,7 +17,7 @@ import math
 from dataclasses import replace
 
 from speccheck.checking import beam_checks, beam_space, targets, wording
-from speccheck.checking.column import BlockCheck
+from speccheck.checking.column import BlockCheck, Carried
 from speccheck.checking.failures import NUMERIC_FAILURES, failure as _failure, in_range as _in_range
 from speccheck.checking.laser_pulse import beam_from, chirp_duration, laser_chirp, measured_spectrum
 from speccheck.checking.stage_checks import CHECKS, Visit, checks_of
@@ -29,7 +29,6 @@ from speccheck.physics.model_range import OutOfModelRange
 from speccheck.physics.pulse_stages import StageProblem
 from speccheck.physics.stages import PARAM_TOLERANCES, STAGE_KINDS
 from speccheck.reading.angles import parse_angle
-from speccheck.reading.units import choose_unit, format_quantity
 from speccheck.reading.values import ValueProblem
 from speccheck.records.findings import Cell, FieldProfile
 
@@ -37,26 +36,6 @@ _FIXED_KEYS = {"name", "kind", "measured", "target"}  # keys every stage may hav
 _STAGE_KEYS = _FIXED_KEYS | {"branches"} | {p.name for k in STAGE_KINDS.values() for p in k.params} | {
     key for c in CHECKS.values() for key in c.keys}
 _SIGNED = ("s^2", "s^3", "s^4")
-
-class Carried:
-    """A value carried along the path into a stage's column: a ``Stated`` whose text (for messages) is
-    written only when a message asks for it (most columns say nothing about most of their values)."""
-
-    __slots__ = ("quantity", "low", "high", "typical", "unit", "_units", "_text")
-
-    def __init__(self, quantity: str, low: float, high: float, typical: float | None, unit: str, units) -> None:
-        self.quantity, self.low, self.high, self.typical, self.unit = quantity, low, high, typical, unit
-        self._units, self._text = units, None
-
-    @property
-    def text(self) -> str:
-        if self._text is None:
-            ref = self.typical or (self.low if self.low > 0 else self.high)
-            shown = format_quantity(self._units, ref, choose_unit(self._units, ref, self.unit)) if ref and \
-                math.isfinite(ref) else ""
-            self._text = f"{shown} (from the path)"
-        return self._text
-
 
 class PathWalk:
     """The walk along one spec's path; the sheet and the report are filled in as it goes."""

@@ -168,6 +168,10 @@ def test_strong_field_figures_at_the_target(check):
     intensity = sheet["peak_intensity"].value
     assert up / 1.602176634e-19 == pytest.approx(9.33e-14 * intensity * 1e-4 * 0.64, rel=3e-3)
     assert sheet["hhg_cutoff_energy"].value == pytest.approx(sheet["ionization_potential"].value + 3.17 * up)
+    # the highest harmonic at or below the cutoff, and odd (a gas gives odd orders only): by hand from the sheet
+    ratio = sheet["hhg_cutoff_energy"].value / sheet["photon_energy"].value
+    odd = max(n for n in range(1, int(ratio) + 1, 2))
+    assert f"order {odd}," in finding.message and odd % 2 == 1 and odd <= ratio < odd + 2
 
 
 def test_a0_near_one_is_noted(check):

@@ -139,9 +139,11 @@ def measured_spot(walk, v: Visit) -> None:
     if spot[2] < limit[0]:
         walk.report.add(
             "spot-below-diffraction-limit",
-            f"{name}: the measured focus {key} {s.text} is smaller than the diffraction limit "
-            f"{walk.show('beam_diameter', typical(limit) / k, 'µm')} for this beam "
-            f"(1/e² diameter 4 M² λ f / (π D) with f = {params['focal_length'][1] * 1e3:.4g} mm)",
+            f"{name}: the measured focus {key} {s.text} is smaller than the smallest spot this beam can be "
+            f"focused to, {walk.show('beam_diameter', typical(limit) / k, 'µm')} (the 1/e² waist "
+            f"{'radius' if k == 2.0 else 'diameter'} of a beam of its M² through f = "
+            f"{params['focal_length'][1] * 1e3:.4g} mm; for a collimated beam about 4 M² λ f / (π D), the "
+            "diffraction limit times M²)",
             at + ("measured", key), quantities=(f"{name}.{key}",))
         v.measured = rest
 

@@ -214,7 +214,13 @@ def strong_field(walk, last: str, target, target_at: tuple) -> None:
                         "before the pulse's peak, so the cutoff and Keldysh figures, which assume the neutral "
                         "atom, overstate what the peak does", target_at + ("gas",),
                         quantities=(f"{last}.peak_intensity",))
-    order = f" (harmonic order {cutoff / photon.value:.0f})" if photon and photon.value else ""
+    order = ""
+    if photon and photon.value and cutoff / photon.value >= 1.0:
+        # a gas of atoms (inversion-symmetric) gives odd harmonics only: the highest one at or below the cutoff
+        # (P. B. Corkum, Phys. Rev. Lett. 71, 1994 (1993); the odd orders from the symmetry, from memory)
+        highest = math.floor(cutoff / photon.value)
+        highest -= 1 - highest % 2
+        order = f" (the highest harmonic below it: order {highest}, as a gas gives odd orders only)"
     regime = "tunnel" if gamma < 1 else "multiphoton"
     circular = "; with circular light, high-harmonic generation is suppressed (the returning electron misses " \
         "the ion), so the cutoff is only the linear-light figure" if polarization == "circular" else ""

@@ -212,15 +212,24 @@ def test_durations_outside_the_ultrafast_range_are_a_note(check, duration):
 
 def test_a_derived_number_beyond_a_float_is_said_not_left_out_silently(check):
     # E/τ/(πw²/2) here is about 1e376 W/m², beyond a double (1.8e308); the sheet cannot show it and says so
-    rule = RULES["beyond-float-range"]
-    result = check("laser:\n  " + rule.failing.replace("\n", "\n  ") + "\n  wavelength: 800 nm\n")
-    (finding,) = [f for f in result.findings if f.rule == "beyond-float-range"]
-    assert "laser.peak_intensity" in finding.message and "above about 1e308" in finding.message
+    result = check("laser:\n  pulse_energy: 1e99 J\n  pulse_duration: 1e-85 fs\n  beam_diameter: 1e-95 mm\n"
+                   "  wavelength: 800 nm\n")
+    (beyond,) = [f for f in result.findings if f.rule == "derived-out-of-range"]  # one finding for the column
+    assert "peak_intensity above about 1e308 W/m^2 (beyond what a float holds" in beyond.message
+    assert "laser.peak_intensity" in beyond.quantities
     assert "peak_intensity" not in result.sheet["laser"]
-    calm = check("laser:\n  " + rule.passing.replace("\n", "\n  ") + "\n  wavelength: 800 nm\n")
-    assert "beyond-float-range" not in [f.rule for f in calm.findings]
-    assert calm.sheet["laser"]["peak_intensity"].value == pytest.approx(
-        2 * 0.9394 * 1e-3 / 35e-15 / (math.pi * 0.005**2), rel=1e-3)  # 2 P_pk / (π w²), by hand
+
+
+def test_a_derived_number_outside_the_stated_range_is_a_warning(check):
+    # 1e99 W at 1e-90 Hz is 1e189 J a pulse: each stated value is in range, what follows is not
+    rule = RULES["derived-out-of-range"]
+    result = check("laser:\n  " + rule.failing.replace("\n", "\n  ") + "\n")
+    said = [f for f in result.findings if f.rule == "derived-out-of-range"]
+    assert len(said) == 1 and {"laser.pulse_energy", "laser.peak_power"} <= set(said[0].quantities)
+    assert result.sheet["laser"]["pulse_energy"].value == pytest.approx(1e99 / 1e-90, rel=1e-9)  # still shown
+    calm = check("laser:\n  " + rule.passing.replace("\n", "\n  ") + "\n")
+    assert "derived-out-of-range" not in [f.rule for f in calm.findings]
+    assert calm.sheet["laser"]["pulse_energy"].value == pytest.approx(1e-3)  # 1 W / 1 kHz, by hand
 
 
 def test_m2_below_one_is_impossible(check):

@@ -8,6 +8,8 @@ from speccheck.checking.engine import implied
 from speccheck.checking.logspace import centre, exp
 from speccheck.physics.quantities import BY_NAME
 from speccheck.reading.units import choose_unit
+from speccheck.reading.values import SI_RANGE
+from speccheck.checking.wording import join
 from speccheck.records.findings import Cell
 
 
@@ -28,6 +30,7 @@ def build(col) -> dict[str, Cell]:
                 centres[i] = math.log(value)
     typical = col.nominal_with(removed, centres) if centres else nominal
     out: dict[str, Cell] = {}
+    far: list = []  # derived values outside the range a stated value may have
     state_lo, state_hi, fixed, units, stated = d.state.lo, d.state.hi, col.fixed, col.c.units, col.stated
     inf = math.inf
     for i, q in enumerate(names):
@@ -42,8 +45,10 @@ def build(col) -> dict[str, Cell]:
             else:
                 value = centre(low, high)
             if value is None and low is None and high is None:
-                _beyond(col, q, y_lo, y_hi)  # beyond what a float holds: nothing to show, and said
+                far.append((q, None, y_lo, y_hi))  # beyond what a float holds: nothing to show, and said
                 continue
+            if value is not None and not SI_RANGE[0] <= value <= SI_RANGE[1]:
+                far.append((q, value, y_lo, y_hi))
             quantity = BY_NAME[q]
             ref = value if value is not None else (low if low is not None else high)
             out[q] = Cell("derived", low, high, value, quantity.si_unit, choose_unit(units, ref, quantity.display_unit))
@@ -73,6 +78,8 @@ def build(col) -> dict[str, Cell]:
     for q, value in col.defaults.items():
         if q not in out and d.state.uses_quantity(derived_from, col.net.index[q]):
             out[q] = Cell("derived", value, value, value, BY_NAME[q].si_unit, "1", assumed=True)
+    if far:
+        _far(col, far)
     return {q: out[q] for q in names if q in out}
 
 
@@ -96,11 +103,24 @@ def _typical_of(log_value, low, high):
     return value if math.isfinite(value) else centre(low, high)
 
 
-def _beyond(col, q: str, y_lo: float, y_hi: float) -> None:
-    """A derived quantity the column determines, but whose every bound is beyond a float: said once."""
-    ends = [y for y in (y_lo, y_hi) if math.isfinite(y)]
-    side = "above about 1e308" if ends and ends[0] > 0 else "below about 1e-308"
-    col.report.add("beyond-float-range", f"{col.name}.{q} follows from the stated values but is {side} in SI "
-                   f"units ({BY_NAME[q].si_unit}), beyond what speccheck can compute, so the sheet leaves it out; "
-                   "the numbers it comes from are far outside an experiment's (a unit or exponent slip?)",
-                   col.at(q), quantities=(col.dotted(q),))
+def _far(col, far: list) -> None:
+    """Derived values outside the range a stated value may have (or beyond a float, left out of the
+    sheet): one finding per column, where they first follow (not again at each column they are carried to)."""
+    def outside(cell) -> bool:
+        return cell.value is None or not SI_RANGE[0] <= cell.value <= SI_RANGE[1]
+
+    new = [item for item in far if not (item[0] in col.before and outside(col.before[item[0]]))]
+    if not new:
+        return
+    parts = []
+    for q, value, y_lo, y_hi in new:
+        if value is not None:
+            parts.append(f"{q} {value:.4g} {BY_NAME[q].si_unit}")
+        else:
+            ends = [y for y in (y_lo, y_hi) if math.isfinite(y)]
+            parts.append(f"{q} {'above about 1e308' if ends and ends[0] > 0 else 'below about 1e-308'} "
+                         f"{BY_NAME[q].si_unit} (beyond what a float holds: left out of the sheet)")
+    col.report.add("derived-out-of-range", f"{col.name}: the stated values give {join(parts)}, outside "
+                   f"{SI_RANGE[0]:g} … {SI_RANGE[1]:g} in SI units, the range a stated value may have; the numbers "
+                   "they come from are far outside an experiment's (a unit or exponent slip?)",
+                   col.at(new[0][0]), quantities=tuple(col.dotted(q) for q, *_ in new))

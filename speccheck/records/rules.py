@@ -302,12 +302,12 @@ _RULES = (
          "N = τ / T_0 = τ c / λ below 1 is a sub-cycle pulse: possible only in exotic sources, and "
          "usually a unit slip in the duration or the wavelength.",
          "wavelength: 800 nm\npulse_duration: 1.5 fs", "wavelength: 800 nm\npulse_duration: 15 fs"),
-    Rule("beyond-float-range", "warning", "a derived number too large or too small to compute",
-         "A number that follows from the stated ones lies beyond what a double-precision float holds "
-         "(about 1e±308 in SI units), so the sheet cannot show it; the numbers it comes from are far "
-         "outside any experiment's, usually by a unit or exponent slip.",
-         "pulse_energy: 1e99 J\npulse_duration: 1e-85 fs\nbeam_diameter: 1e-95 mm",
-         "pulse_energy: 1 mJ\npulse_duration: 35 fs\nbeam_diameter: 10 mm"),
+    Rule("derived-out-of-range", "warning", "a derived number outside the range speccheck handles",
+         "A number that follows from the stated ones lies outside 1e-100 … 1e100 in SI units, the range a "
+         "stated value may have (beyond about 1e±308 a double cannot hold it and the sheet leaves it out); "
+         "the numbers it comes from are far outside any experiment's, usually by a unit or exponent slip.",
+         "repetition_rate: 1e-90 Hz\naverage_power: 1e99 W\npulse_duration: 100 fs",
+         "repetition_rate: 1 kHz\naverage_power: 1 W\npulse_duration: 100 fs"),
     Rule("outside-ultrafast-range", "note", "a pulse duration outside 1 fs – 100 ps",
          "speccheck is made for femtosecond to picosecond pulses; the relations still hold outside "
          "that range, but a value there is often a unit slip.",

@@ -94,10 +94,12 @@ class Result:
                     for column, cells in r.sheet.items()
                     for q, c in cells.items()]
         if kind == "remedies":
+            # an open side is ±inf; a remedy that no value reaches has no range at all: None on both sides
             return [{"file": r.path, "line": f.line, "rule": f.rule, "input": x.input, "sheet_column": x.column,
-                     "parameter": x.parameter, "low": -math.inf if x.low is None else x.low,
-                     "high": math.inf if x.high is None else x.high, "unit": x.unit, "reachable": x.reachable,
-                     "stated": x.stated}
+                     "parameter": x.parameter,
+                     "low": None if not x.reachable else -math.inf if x.low is None else x.low,
+                     "high": None if not x.reachable else math.inf if x.high is None else x.high,
+                     "unit": x.unit, "reachable": x.reachable, "stated": x.stated}
                     for r in self.files for f in r.findings for x in (f.remedies or ())]
         raise ValueError(f"to_records: kind is 'findings', 'cells' or 'remedies', not {kind!r}")
 
@@ -162,8 +164,10 @@ def find(paths: Iterable[str], config: Config) -> Found:
     names = list(paths)
     expansion = files.spec_files(names, cfg.Selector(config) if config.include or config.exclude else None)
     messages = [f"no spec file matches {files.printable(repr(pattern))}" for pattern in expansion.unmatched]
-    if not expansion.files:
-        messages.append("no spec files (*.yaml, *.yml) found in " + ", ".join(map(files.printable, names)))
+    # nothing found: said once, of what was neither a glob already said nor a file the patterns left out
+    rest = [n for n in names if n not in expansion.unmatched and n not in expansion.skipped]
+    if not expansion.files and rest:
+        messages.append("no spec files (*.yaml, *.yml) found in " + ", ".join(map(files.printable, rest)))
     messages += [f"skipped {files.printable(name)}: left out by the include/exclude patterns of "
                  f"{files.printable(str(config.path))}" for name in expansion.skipped]
     # nothing to check is a failure to find (exit 2), as a glob that matches nothing is, unless the

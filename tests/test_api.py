@@ -155,6 +155,9 @@ def test_records_are_flat_with_the_same_keys(specs):
     assert len(result.to_records()) == len(result.findings)
     assert len(result.to_records("cells")) == sum(len(c) for r in result.files for c in r.sheet.values())
     assert len(result.to_records("remedies")) == sum(len(f.remedies or ()) for f in result.findings)
+    # a remedy no value reaches is no range: never an open one that a filter low <= x <= high would take
+    for r in result.to_records("remedies"):
+        assert (r["low"] is None and r["high"] is None) == (not r["reachable"])
     # the records carry what the JSON carries: candidates of an ambiguous conflict, each remedy's range
     doc = result.to_dict()
     listed = [f for d in doc["files"] for f in d["findings"]]
@@ -186,3 +189,13 @@ def test_what_would_meet_a_target_reads_the_measured_data_beside_the_spec_too(sp
     result = speccheck.check_text(text, path="pp.yaml", base=specs, config=False)
     assert any("remedies" in f for f in document["files"][0]["findings"])
     assert result.to_dict() == document and result.exit_code == code
+
+
+def test_a_remedy_no_value_reaches_has_no_range_in_the_records():
+    # the pump-probe example's pulse duration cannot meet its target anywhere in the range searched
+    result = speccheck.check_text((EXAMPLES / "amplifier-pump-probe-path.yaml").read_text(encoding="utf-8"),
+                                  base=str(EXAMPLES), config=False)
+    records = result.to_records("remedies")
+    unreachable = [r for r in records if not r["reachable"]]
+    assert unreachable and all(r["low"] is None and r["high"] is None for r in unreachable)
+    assert all(r["low"] is not None and r["high"] is not None for r in records if r["reachable"])

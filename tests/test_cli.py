@@ -299,6 +299,12 @@ def test_plain_human_output_does_not_import_rich():
     assert proc.stdout.split() == ["False", "True"] * 3 + ["True", "True"], proc.stderr
 
 
+def test_review_puts_targets_not_met_apart_from_impossible_claims():
+    code, out, _ = cli("check", "--review", str(EXAMPLES / "proposal-focus-path.yaml"))
+    assert "Targets not met:" in out and "Impossible or contradictory" not in out
+    assert "No claim contradicts another." in out  # a target not met is not a contradiction among the claims
+
+
 def test_review_says_the_bandwidth_once_in_the_form_the_sheet_states_it():
     # the pump-probe laser states its bandwidth in nm: the review's implied bandwidth is in nm, only
     # where it changes (the harmonic's 10.61 nm: 30 nm × √... of the doubled pulse), never again in THz

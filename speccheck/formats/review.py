@@ -112,10 +112,13 @@ def write(results: list[FileResult], out, options) -> None:
         if table:
             _table(console, result, numbers)
         errors = [f for f in result.findings if f.severity == "error"]
-        if errors:
-            console.print(Text("  Impossible or contradictory:", style=_STYLE["error"]))
-            for f in errors:
-                console.print(Text(f"    {_at(f)}: " if f.line or f.origin else "    ") + Text(f.message))
+        claims = [f for f in errors if f.rule != "target-not-met"]
+        unmet = [f for f in errors if f.rule == "target-not-met"]
+        for heading, group in (("Impossible or contradictory:", claims), ("Targets not met:", unmet)):
+            if group:  # what the sheet claims that cannot be, then what the setup does not reach
+                console.print(Text(f"  {heading}", style=_STYLE["error"]))
+                for f in group:
+                    console.print(Text(f"    {_at(f)}: " if f.line or f.origin else "    ") + Text(f.message))
         implied = []
         bandwidth = _bandwidth_form(result, columns)
         for q in HEADLINE:
@@ -147,7 +150,7 @@ def write(results: list[FileResult], out, options) -> None:
             label = "Caution" if f.rule in CAUTIONS else f.severity.capitalize()
             console.print(Text(f"  {label}: ", style=_STYLE[f.severity])
                           + Text(f"{_at(f)}: {f.message}" if f.line or f.origin else f.message))
-        if not errors:
+        if not claims:
             console.print(Text("  No claim contradicts another.", style="green"))
         console.print()
     console.print(counts_text(results) + f" in {len(results)} file{'' if len(results) == 1 else 's'}")

@@ -270,3 +270,15 @@ def test_a_very_wide_bandwidth_says_its_conversion_is_linearised(check, bandwidt
         lam, d = 800e-9, 200e-9
         exact, linear = 1 / (lam - d / 2) - 1 / (lam + d / 2), d / lam**2
         assert f"{(exact / linear - 1) * 100:.2g}%" in found[0].message  # (Δλ/λ)²/4 = 1.6%
+
+
+def test_a_spec_that_states_nothing_is_said_not_passed_silently(check):
+    rule = RULES["nothing-checked"]
+    result = check(rule.failing + "\n")
+    assert [(f.rule, f.severity) for f in result.findings] == [("nothing-checked", "warning")]
+    assert "nothing-checked" not in [f.rule for f in check(rule.passing + "\n").findings]
+    # a spec whose values could not be read says so already (an error): no second word
+    assert [f.rule for f in check("laser:\n  pulse_enrgy: 25 nJ\n").findings] == ["unknown-key"]
+    # a path or operating points are something to check, even with a bare laser block
+    assert "nothing-checked" not in [f.rule for f in check(
+        "laser: {}\npath:\n  - {name: m, kind: optic, transmission: 90%}\n").findings]

@@ -104,6 +104,12 @@ class Checker:
             block = data.get("laser")
             if isinstance(block, dict):
                 sheet["laser"] = BlockCheck(self, "laser", block, tolerance, report).run()
+                if not any(c.status != "derived" for c in sheet["laser"].values()) and not data.get("path") \
+                        and not data.get("operating_points") and not any(f.severity == "error"
+                                                                         for f in report.findings):
+                    # an emptied or unfinished spec passes nothing: it is said, not a silent "0 errors"
+                    report.add("nothing-checked", "laser: the block states no quantity (and the spec has no "
+                               "operating points or path), so nothing was checked", ("laser",), key=True)
                 shape_stated = isinstance(block.get("pulse_shape"), str) and block["pulse_shape"] in PULSE_SHAPES
                 shape = block["pulse_shape"] if shape_stated else DEFAULT_SHAPE
                 points = data.get("operating_points")

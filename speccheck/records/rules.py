@@ -302,6 +302,11 @@ _RULES = (
          "N = τ / T_0 = τ c / λ below 1 is a sub-cycle pulse: possible only in exotic sources, and "
          "usually a unit slip in the duration or the wavelength.",
          "wavelength: 800 nm\npulse_duration: 1.5 fs", "wavelength: 800 nm\npulse_duration: 15 fs"),
+    Rule("nothing-checked", "warning", "a spec that states nothing to check",
+         "The laser block states no quantity and there are no operating points or path: every check passes "
+         "because there is nothing to check, which is rarely what a file in a folder of specs means (an "
+         "emptied or unfinished spec).",
+         "laser: {}", "laser:\n  average_power: 1 W"),
     Rule("derived-out-of-range", "warning", "a derived number outside the range speccheck handles",
          "A number that follows from the stated ones lies outside 1e-100 … 1e100 in SI units, the range a "
          "stated value may have (beyond about 1e±308 a double cannot hold it and the sheet leaves it out); "

@@ -159,3 +159,20 @@ def test_the_unit_table_gives_the_choice_made_afresh_at_every_step(units, unit, 
         value = 10.0 ** (step / 1e4)
         assert choose_unit(units, value, unit, keep) == _choose_unit(units, value, unit, keep), (step, unit)
         assert choose_unit(units, -value, unit, keep) == _choose_unit(units, value, unit, keep)
+
+
+@pytest.mark.parametrize("text, named", [("80 mhz", ["'mHz'", "'MHz'"]), ("10 uj", ["'uJ'"]), ("2 w", ["'W'"]),
+                                         ("1 khz", ["'kHz'"]), ("3 MJ", None)])
+def test_a_unit_in_the_wrong_case_names_every_unit_it_may_mean(units, text, named):
+    from speccheck.reading.values import ValueParser, ValueProblem
+
+    quantity = {"hz": "repetition_rate", "j": "pulse_energy", "w": "average_power"}
+    key = next(v for k, v in quantity.items() if text.lower().endswith(k))
+    parser = ValueParser(units)
+    if named is None:  # a unit that exists is read, not hinted at
+        assert parser.parse(key, text, 0.05).typical == pytest.approx(3e6)
+        return
+    with pytest.raises(ValueProblem) as problem:
+        parser.parse(key, text, 0.05)
+    assert problem.value.rule == "unknown-unit" and all(n in problem.value.message for n in named)
+    assert "case-sensitive" in problem.value.message

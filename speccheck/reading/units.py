@@ -125,10 +125,30 @@ class UnitSystem:
         return self.parse(text).factor
 
 
+_CASE_PREFIXES = ("", "a", "f", "p", "n", "u", "µ", "m", "k", "M", "G", "T", "P")
+_CASE_BASES = ("s", "Hz", "J", "W", "eV", "m")
+# the common units whose spelling differs from another only in case, by their lower-case form
+_BY_LOWER: dict[str, list[str]] = {}
+for _base in _CASE_BASES:
+    for _prefix in _CASE_PREFIXES:
+        _BY_LOWER.setdefault((_prefix + _base).lower(), []).append(_prefix + _base)
+
+
+def _case_hint(text: str) -> str:
+    """For a unit written in the wrong case ('mhz', '10 uj', '2 w'): the units it may mean.  Prefixes are
+    case-sensitive (M mega, m milli), so every unit that fits is named, never one guessed."""
+    fits = [u for u in _BY_LOWER.get(text.strip().lower(), []) if u != text.strip()]
+    if not fits:
+        return ""
+    named = " or ".join(repr(u) for u in fits)
+    return f"; did you mean {named}? (unit symbols are case-sensitive: M is mega, m milli)" if len(fits) > 1 else \
+        f"; did you mean {named}? (unit symbols are case-sensitive)"
+
+
 def _pint_reason(text: str, exc: Exception) -> str:
     name = type(exc).__name__
     if name == "UndefinedUnitError":
-        return f"unknown unit {text!r}"
+        return f"unknown unit {text!r}" + _case_hint(text)
     if name == "DefinitionSyntaxError" or isinstance(exc, SyntaxError):
         return f"{text!r} is not a unit expression"
     if isinstance(exc, OverflowError):

@@ -36,7 +36,8 @@ def report_limits(col, cells: dict[str, Cell]) -> None:
         origin = "" if q in col.stated else f" (from {col.describe_support(support)})"
         bound = limit.bound(col.context)
         what = limit.what.format(shape=col.context.shape.name)
-        bound_text = f"{what}" if what.replace(" ", "").replace(".", "").isdigit() else \
+        # a bound that is a number already ("100 ps", "1") is said once; one in words gets its number
+        bound_text = f"{what}" if what[:1].isdigit() else \
             f"{what} ({format_quantity(col.c.units, bound, col.unit_for(q, bound))})"
         relation = "below" if limit.side == "min" else "at or above" if bound == 1.0 else "above"
         col.report.add(

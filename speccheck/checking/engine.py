@@ -112,17 +112,21 @@ class State:
         return self.lo[i] > -math.inf or self.hi[i] < math.inf
 
 
-def propagate(net: Network, stated: dict) -> State:
-    """``stated``: var index -> (ln low, ln high).  Returns the fixed point (each relation's step as
-    generated code, ``_generate``; the same as ``reference_propagate``, bit for bit)."""
+def _start(net: Network, stated: dict) -> State:
+    """The intervals before propagation: each stated value with itself as its support, the rest open."""
     n = len(net.names)
     inf = math.inf
     lo, hi = [-inf] * n, [inf] * n
     lo_s, hi_s = [0] * n, [0] * n
-    lo_v, hi_v = [0] * n, [0] * n
     for i, (a, b) in stated.items():
         lo[i], hi[i] = a, b
         lo_s[i] = hi_s[i] = 1 << i
+    return State(net, lo, hi, lo_s, hi_s, [0] * n, [0] * n)
+
+
+def propagate(net: Network, stated: dict) -> State:
+    """``stated``: var index -> (ln low, ln high).  Returns the fixed point (each relation's step as
+    generated code, ``engine_code``; the same as ``reference_propagate``, bit for bit)."""
     generated = net.generated
     steps_of = generated[1]
     if steps_of is None:
@@ -130,7 +134,8 @@ def propagate(net: Network, stated: dict) -> State:
         if generated[0] < GENERATE_AFTER:
             return reference_propagate(net, stated)
         steps_of = generated[1] = generated_steps(net)
-    state = State(net, lo, hi, lo_s, hi_s, lo_v, hi_v)
+    state = _start(net, stated)
+    lo, hi, lo_s, hi_s, lo_v, hi_v = state.lo, state.hi, state.lo_support, state.hi_support, state.lo_via, state.hi_via
     sizes = [len(terms) for _, terms, _ in net.relations]
     queue = deque(range(len(steps_of)))
     append, popleft = queue.append, queue.popleft
@@ -151,15 +156,9 @@ def propagate(net: Network, stated: dict) -> State:
 def reference_propagate(net: Network, stated: dict) -> State:
     """``propagate`` as a loop over the compiled terms: the reference the generated steps are tested
     against (and the plainest statement of what a step does)."""
-    n = len(net.names)
+    state = _start(net, stated)
+    lo, hi, lo_s, hi_s, lo_v, hi_v = state.lo, state.hi, state.lo_support, state.hi_support, state.lo_via, state.hi_via
     inf = math.inf
-    lo, hi = [-inf] * n, [inf] * n
-    lo_s, hi_s = [0] * n, [0] * n
-    lo_v, hi_v = [0] * n, [0] * n
-    for i, (a, b) in stated.items():
-        lo[i], hi[i] = a, b
-        lo_s[i] = hi_s[i] = 1 << i
-    state = State(net, lo, hi, lo_s, hi_s, lo_v, hi_v)
     relations = net.relations
     touching = net.touching
     solved = net.solved

@@ -112,3 +112,12 @@ def test_the_cache_folder_is_the_platforms(monkeypatch):
     monkeypatch.delenv("SPECCHECK_CACHE_DIR", raising=False)
     monkeypatch.delenv("SPECCHECK_NO_CACHE", raising=False)
     assert str(unit_table.path()).startswith(platformdirs.user_cache_dir("speccheck", appauthor=False))
+
+
+def test_the_table_is_named_for_the_pint_that_answers():
+    # read from pint's metadata folder beside it, without importing importlib.metadata: the same version
+    from importlib.metadata import version
+
+    from speccheck.reading import unit_table
+
+    assert unit_table._pint_version() == version("pint")

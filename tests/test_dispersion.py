@@ -135,3 +135,20 @@ def test_invalid_inputs() -> None:
         d.intrinsic_gdd(5 * FS, 10 * FS)  # shorter than transform limit
     with pytest.raises(ValueError):
         d.broadened_duration(-1 * FS, 0.0)
+
+
+def test_the_duration_interval_after_glass_and_compressor_holds_every_combination_of_their_tolerances(check) -> None:
+    # A 10 fs pulse through 10 mm ± 0.5 mm of fused silica and a compressor of -361 fs² ± 18 fs², -270 fs³ ±
+    # 30 fs³: the sheet's interval must hold the duration at every combination of the stage tolerances,
+    # each checked on its own with that combination exact (a sweep by re-checking, not the window corners).
+    # Its ends come from the field's corners; the sweep samples the box (ends and midpoints).
+    def spec(thick: str, gdd: str, tod: str) -> str:
+        return ("laser:\n  wavelength: 800 nm\n  pulse_duration: 10 fs\n  spectral_bandwidth_wavelength: 94 nm\n"
+                "  pulse_energy: 1 uJ\n  pulse_shape: gaussian\n  chirp: positive\n"
+                f"path:\n  - {{name: glass, kind: material, material: fused_silica, thickness: '{thick}'}}\n"
+                f"  - {{name: comp, kind: dispersion, gdd: '{gdd}', tod: '{tod}'}}\n")
+    whole = check(spec("10 mm ± 0.5 mm", "-361 fs^2 ± 18 fs^2", "-270 fs^3 ± 30 fs^3")).sheet["comp"]["pulse_duration"]
+    swept = [check(spec(f"{th} mm ± 0 mm", f"{g} fs^2 ± 0 fs^2", f"{t} fs^3 ± 0 fs^3")).sheet["comp"]["pulse_duration"].value
+             for th in (9.5, 10.0, 10.5) for g in (-379, -361, -343) for t in (-300, -270, -240)]
+    assert whole.low <= min(swept) * (1 + 1e-6) and max(swept) <= whole.high * (1 + 1e-6)
+    assert max(swept) > 1.2 * min(swept)  # the tolerances matter here: the check can fail
